@@ -1,15 +1,16 @@
-import { DataTypes, type QueryInterface } from 'sequelize';
+import { DataTypes, literal, type QueryInterface } from 'sequelize';
 import type { MigrationParams } from 'umzug';
 
 // The first cut of the data model: people, collections, their vocabularies (subjects), examples,
 // items, stored features, subject models, suggestions, night-shift runs and jobs, audit events,
 // exports and sessions. Frozen: later changes go into new numbered migrations.
 
+const now3 = literal('CURRENT_TIMESTAMP(3)');
 const id = { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true, allowNull: false };
 const bigId = { type: DataTypes.BIGINT.UNSIGNED, autoIncrement: true, primaryKey: true, allowNull: false };
 const timestamps = {
-  created_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: DataTypes.NOW },
-  updated_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: DataTypes.NOW },
+  created_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: now3 },
+  updated_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: now3 },
 };
 const ref = (table: string, onDelete: 'CASCADE' | 'SET NULL' | 'RESTRICT', allowNull = false, big = false) => ({
   type: big ? DataTypes.BIGINT.UNSIGNED : DataTypes.INTEGER.UNSIGNED,
@@ -192,7 +193,7 @@ export async function up({ context: qi }: MigrationParams<QueryInterface>): Prom
     status: { type: DataTypes.ENUM('pending', 'running', 'done', 'failed'), allowNull: false, defaultValue: 'pending' },
     attempts: { type: DataTypes.SMALLINT.UNSIGNED, allowNull: false, defaultValue: 0 },
     max_attempts: { type: DataTypes.SMALLINT.UNSIGNED, allowNull: false, defaultValue: 5 },
-    run_after: { type: DataTypes.DATE(3), allowNull: false, defaultValue: DataTypes.NOW },
+    run_after: { type: DataTypes.DATE(3), allowNull: false, defaultValue: now3 },
     lease_until: { type: DataTypes.DATE(3), allowNull: true },
     locked_by: { type: DataTypes.STRING(120), allowNull: true },
     progress: { type: DataTypes.JSON, allowNull: true },
@@ -223,7 +224,7 @@ export async function up({ context: qi }: MigrationParams<QueryInterface>): Prom
     target_id: { type: DataTypes.STRING(64), allowNull: true },
     detail: { type: DataTypes.JSON, allowNull: true },
     ip: { type: DataTypes.STRING(45), allowNull: true },
-    created_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: DataTypes.NOW },
+    created_at: { type: DataTypes.DATE(3), allowNull: false, defaultValue: now3 },
   });
   await qi.addIndex('audit_events', ['action', 'created_at'], { name: 'audit_events_action' });
   await qi.addIndex('audit_events', ['actor_id', 'created_at'], { name: 'audit_events_actor' });

@@ -299,7 +299,9 @@ async function main() {
 
   runStep('migrations', 'scripts/migrate.ts', env);
   if (mode === 'db') {
-    log(`database ${db.name} is ready on 127.0.0.1:${db.port}; Ctrl-C stops MariaDB`);
+    // for running tests by hand (npx vitest): the test database exists too, migrated by the tests themselves
+    ensureDatabase('cartouche_test');
+    log(`databases ${db.name} and cartouche_test are ready on 127.0.0.1:${db.port}; Ctrl-C stops MariaDB`);
     return;
   }
 

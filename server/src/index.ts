@@ -1,0 +1,27 @@
+// Starts the Cartouche API: builds the app from server/src/app.ts and listens on 127.0.0.1.
+import { createApp } from './app.ts';
+import { loadConfig } from './config.ts';
+import { openDatabase } from './db/index.ts';
+import { logger } from './logger.ts';
+
+const config = loadConfig();
+const sequelize = openDatabase(config.db);
+await sequelize.authenticate();
+const app = createApp({ config, sequelize });
+const host = process.env.CARTOUCHE_API_HOST ?? '127.0.0.1';
+const server = app.listen(config.apiPort, host, () => {
+  logger.info({ url: `http://${host}:${config.apiPort}/` }, 'Cartouche API listening');
+});
+server.on('error', (err) => {
+  logger.fatal({ err }, 'API could not listen');
+  process.exit(1);
+});
+
+async function stop(signal: string): Promise<void> {
+  logger.info({ signal }, 'API stopping');
+  server.close();
+  await sequelize.close();
+  process.exit(0);
+}
+process.once('SIGINT', () => void stop('SIGINT'));
+process.once('SIGTERM', () => void stop('SIGTERM'));
