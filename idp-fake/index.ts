@@ -28,12 +28,14 @@ import { createRequire } from 'node:module';
 import type { AddressInfo } from 'node:net';
 import { Writable } from 'node:stream';
 import { format } from 'node:util';
+import type * as NodeHttp from 'node:http';
 import type { Logger } from 'pino';
 import { ensureDevCertificates } from '../scripts/dev-certs.ts';
 import { ROLE_ATTRIBUTE, demoIdentities, findDemoIdentity, type DemoIdentity } from './identities.ts';
 
 const require = createRequire(import.meta.url);
-const nodeHttp = require('node:http') as typeof import('node:http');
+// the CommonJS module object itself: saml-idp reads http.createServer from it, so it is replaced there
+const nodeHttp = require('node:http') as typeof NodeHttp;
 
 interface SamlIdpModule {
   runServer(options: Record<string, unknown>): void;
@@ -213,6 +215,7 @@ function installConsoleRedirect(): void {
   };
 }
 
+// eslint-disable-next-line no-control-regex -- stripping terminal colour codes is the point
 const ANSI_ESCAPES = /\u001b\[[0-9;]*m/g;
 
 function lineSink(logger: Logger | undefined): LineSink {

@@ -11,7 +11,7 @@ function itemsPhrase(count: number): string {
 
 function formsPhrase(count: number): string {
   if (count === 0) return 'no forms yet';
-  return count === 1 ? 'including 1 form' : `including ${formatCount(count)} forms`;
+  return count === 1 ? 'plus 1 form' : `plus ${formatCount(count)} forms`;
 }
 
 /** One collection at a glance: what it is, how far its alt text has come, what waits for people. */

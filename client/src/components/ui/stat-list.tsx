@@ -4,7 +4,7 @@ import { cx } from './cx';
 export interface Stat {
   label: string;
   value: ReactNode;
-  /** A qualifier shown under the value, e.g. "including 4 forms". */
+  /** A qualifier shown under the value, e.g. "plus 4 forms". */
   note?: ReactNode;
 }
 

@@ -1,0 +1,50 @@
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { join } from 'node:path';
+import { chromium, type Browser, type Page } from 'playwright-core';
+import { projectRoot } from '../../server/src/config.ts';
+
+const CHROMIUM = process.env.CARTOUCHE_CHROMIUM ?? '/usr/bin/chromium';
+
+/** Debian's Chromium, headless, with the background networking this closed machine refuses switched off. */
+export async function launchBrowser(): Promise<Browser> {
+  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: run the tests through \`npm test\`, which installs Debian's chromium`);
+  return chromium.launch({
+    executablePath: CHROMIUM,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+}
+
+const axeSource = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
+
+export interface AxeViolation {
+  id: string;
+  impact: string | null;
+  help: string;
+  nodes: Array<{ target: string[] }>;
+}
+
+/** Runs axe-core (Deque's WCAG rules engine) in the page against WCAG 2.0, 2.1 and 2.2 levels A and AA. */
+export async function axeViolations(page: Page): Promise<AxeViolation[]> {
+  await page.addScriptTag({ content: axeSource });
+  return page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run(ctx: Document, opts: unknown): Promise<{ violations: AxeViolation[] }> } }).axe;
+    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } });
+    return result.violations.map((v) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.map((n) => ({ target: n.target })) }));
+  });
+}
+
+/** Saves a screenshot under .data/screenshots/ so a person can look at what the test saw. */
+export async function screenshot(page: Page, name: string): Promise<string> {
+  const dir = join(projectRoot, '.data', 'screenshots');
+  mkdirSync(dir, { recursive: true });
+  const path = join(dir, `${name}.png`);
+  await page.screenshot({ path, fullPage: true });
+  return path;
+}
+
+export const clientBuildDir = join(projectRoot, 'dist', 'client');
+
+export function assertClientBuilt(): void {
+  if (!existsSync(join(clientBuildDir, 'index.html'))) throw new Error('dist/client is missing: run `npm run build` (npm test does it for you)');
+}
