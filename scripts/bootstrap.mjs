@@ -78,6 +78,8 @@ function ensureSystemPackages() {
   if (!which('mariadbd') || !which('mariadb-install-db')) need.push('mariadb-server-core');
   if (!which('mariadb')) need.push('mariadb-client-core');
   if (mode === 'test' && !existsSync('/usr/bin/chromium')) need.push('chromium');
+  // public-domain clip art: the open dataset the subject-model checks run on
+  if (mode === 'test' && !existsSync('/usr/share/openclipart/png')) need.push('openclipart-png');
   if (need.length) aptInstall(need);
 }
 
