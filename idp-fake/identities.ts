@@ -1,11 +1,13 @@
 /**
- * Demo people of the invented Saltmere Harbour Museum, one (or more) per Cartouche role, offered by
+ * Demo people of the invented demo institution, one (or more) per Cartouche role, offered by
  * the local fake identity provider. Their SAML attributes are what an organisation's identity
  * provider would send: `email`, `displayName`, `firstName`, `lastName` and `cartoucheRole`.
  *
  * One person carries a role value Cartouche does not know (`cartouche-volunteer`), so the
  * service provider's default-role mapping can be exercised.
  */
+
+import { DEMO_INSTITUTION, demoPeople, type DemoPerson } from '../scripts/demo/scenario.ts';
 
 /** The SAML attribute that carries a person's Cartouche role. */
 export const ROLE_ATTRIBUTE = 'cartoucheRole';
@@ -31,62 +33,42 @@ export interface DemoIdentity {
   description: string;
 }
 
+const DESCRIPTIONS: Record<DemoPerson['role'], string> = {
+  admin: 'Administrator: looks after people, roles, sign-in and mail settings.',
+  archivist: 'Archivist: defines the subjects of the harbour collections and imports new scans.',
+  editor: 'Editor: works through the review desk and writes alt text.',
+  manager: 'Collections manager: follows coverage and exports the coverage ledger.',
+};
+
+/**
+ * The demo staff of the scenario (the same people who have local demo accounts), keyed `admin`,
+ * `admin-2`, `editor`, `editor-2`, …, plus one volunteer whose role value maps to no Cartouche role.
+ */
 export const demoIdentities: readonly DemoIdentity[] = Object.freeze([
-  {
-    key: 'admin',
-    email: 'morwenna.tallack@saltmere-harbour.example',
-    displayName: 'Morwenna Tallack',
-    firstName: 'Morwenna',
-    lastName: 'Tallack',
-    role: ROLE_VALUES.admin,
-    description: 'Systems registrar: looks after users, roles, sign-in and mail settings.',
-  },
-  {
-    key: 'archivist',
-    email: 'idris.penhallow@saltmere-harbour.example',
-    displayName: 'Idris Penhallow',
-    firstName: 'Idris',
-    lastName: 'Penhallow',
-    role: ROLE_VALUES.archivist,
-    description: 'Archivist: defines the subjects of the harbour collections and imports new scans.',
-  },
-  {
-    key: 'editor',
-    email: 'ottilie.brennock@saltmere-harbour.example',
-    displayName: 'Ottilie Brennock',
-    firstName: 'Ottilie',
-    lastName: 'Brennock',
-    role: ROLE_VALUES.editor,
-    description: 'Editor: works through the review desk and writes alt text.',
-  },
-  {
-    key: 'editor-2',
-    email: 'ruan.esterhuys@saltmere-harbour.example',
-    displayName: 'Ruan Esterhuys',
-    firstName: 'Ruan',
-    lastName: 'Esterhuys',
-    role: ROLE_VALUES.editor,
-    description: 'Second editor, for trying two editors on the same item.',
-  },
-  {
-    key: 'manager',
-    email: 'halima.quarrie@saltmere-harbour.example',
-    displayName: 'Halima Quarrie',
-    firstName: 'Halima',
-    lastName: 'Quarrie',
-    role: ROLE_VALUES.manager,
-    description: 'Collections manager: follows coverage and exports the coverage ledger.',
-  },
+  ...demoPeople().map((person, _i, all): DemoIdentity => {
+    const sameRole = all.filter((p) => p.role === person.role);
+    const n = sameRole.indexOf(person);
+    const [firstName = person.displayName, ...rest] = person.displayName.split(' ');
+    return {
+      key: n === 0 ? person.role : `${person.role}-${n + 1}`,
+      email: person.email,
+      displayName: person.displayName,
+      firstName,
+      lastName: rest.join(' '),
+      role: ROLE_VALUES[person.role],
+      description: n === 0 ? DESCRIPTIONS[person.role] : `${DESCRIPTIONS[person.role]} (another ${person.role}, for trying two people on one task)`,
+    };
+  }),
   {
     key: 'volunteer',
-    email: 'jory.annear@saltmere-harbour.example',
-    displayName: 'Jory Annear',
-    firstName: 'Jory',
-    lastName: 'Annear',
+    email: `wren.tolliver@${DEMO_INSTITUTION.domain}`,
+    displayName: 'Wren Tolliver',
+    firstName: 'Wren',
+    lastName: 'Tolliver',
     role: 'cartouche-volunteer',
-    description: 'Volunteer with a role value Cartouche does not know: shows the default role.',
+    description: 'Volunteer: the identity provider sends a role value Cartouche does not map, so the default role applies.',
   },
-] satisfies DemoIdentity[]);
+]);
 
 export function findDemoIdentity(key: string): DemoIdentity | undefined {
   return demoIdentities.find((identity) => identity.key === key);

@@ -520,7 +520,7 @@ function notice(): string {
   return `<div class="notice" role="note">
   <p><strong>Local development identity provider for Cartouche.</strong></p>
   <p>This is not a real sign-in service. It runs on this computer only, asks for no password and lets
-  anyone who can reach it sign in as any of the demo people of the invented Saltmere Harbour Museum.</p>
+  anyone who can reach it sign in as any of the demo people of the invented Kestrelmouth Harbour Museum.</p>
 </div>`;
 }
 

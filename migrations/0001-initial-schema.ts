@@ -245,13 +245,12 @@ export async function up({ context: qi }: MigrationParams<QueryInterface>): Prom
   });
   await qi.addIndex('exports', ['collection_id', 'created_at'], { name: 'exports_collection' });
 
-  // the shape connect-session-sequelize expects (sid, expires, data, timestamps)
+  // the shape connect-session-sequelize expects (sid, expires, data, timestamps named by our define options)
   await qi.createTable('sessions', {
     sid: { type: DataTypes.STRING(64), primaryKey: true, allowNull: false },
     expires: { type: DataTypes.DATE, allowNull: true },
     data: { type: DataTypes.TEXT, allowNull: true },
-    createdAt: { type: DataTypes.DATE, allowNull: false },
-    updatedAt: { type: DataTypes.DATE, allowNull: false },
+    ...timestamps,
   });
   await qi.addIndex('sessions', ['expires'], { name: 'sessions_expires' });
 }

@@ -1,6 +1,7 @@
 import type { QueryInterface } from 'sequelize';
 import type { MigrationParams } from 'umzug';
 import * as m0001 from './0001-initial-schema.ts';
+import * as m0002 from './0002-user-tokens.ts';
 
 export interface MigrationModule {
   up(params: MigrationParams<QueryInterface>): Promise<void>;
@@ -11,4 +12,7 @@ export interface MigrationModule {
  * Every migration, in order. Listed statically (not globbed) so the same code runs under tsx, vitest and a
  * bundler. Add a new file `NNNN-what-it-does.ts` and one line here; never edit a migration that has shipped.
  */
-export const migrations: Array<[name: string, module: MigrationModule]> = [['0001-initial-schema', m0001]];
+export const migrations: Array<[name: string, module: MigrationModule]> = [
+  ['0001-initial-schema', m0001],
+  ['0002-user-tokens', m0002],
+];

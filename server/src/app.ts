@@ -3,33 +3,58 @@ import { join } from 'node:path';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
 import { pinoHttp } from 'pino-http';
+import { createPassport } from './auth/passport.ts';
+import { csrfCheck, sessionMiddleware } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { HttpProblem, apiNotFound, problemHandler } from './http/problem.ts';
+import { GuardedRouter, type RouteRecord } from './http/routes.ts';
 import { logger } from './logger.ts';
-import { collectionRoutes } from './routes/collections.ts';
-import { healthRoutes } from './routes/health.ts';
+import { createMailer, type Mailer } from './mail/mailer.ts';
+import { registerAuthRoutes } from './routes/auth.ts';
+import { registerCollectionRoutes } from './routes/collections.ts';
+import { registerHealthRoutes } from './routes/health.ts';
+import { registerMailboxRoutes } from './routes/mailbox.ts';
+import { registerPeopleRoutes } from './routes/people.ts';
+
+export interface CartoucheApp extends Express {
+  locals: Express['locals'] & { routes: RouteRecord[] };
+}
 
 /** Builds the Express app (without listening): the API under /api and the client's build with an SPA fallback. */
-export function createApp(ctx: AppContext): Express {
-  const app = express();
+export function createApp(ctx: AppContext, opts: { mailer?: Mailer } = {}): CartoucheApp {
+  const app = express() as CartoucheApp;
+  const mailer = opts.mailer ?? createMailer(ctx.config);
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
   app.use(
     helmet({
       contentSecurityPolicy: {
-        directives: { 'img-src': ["'self'", 'data:', 'blob:'], 'upgrade-insecure-requests': null },
+        directives: {
+          'img-src': ["'self'", 'data:', 'blob:'],
+          // the SAML sign-in ends with a form posted to the identity provider's or our own address
+          'form-action': ["'self'", new URL(ctx.config.saml.entryPoint).origin],
+          'upgrade-insecure-requests': null,
+        },
       },
       hsts: ctx.config.publicUrl.startsWith('https:'),
     }),
   );
   app.use(pinoHttp({ logger, autoLogging: { ignore: (req) => req.url === '/api/health' } }));
 
-  const api = express.Router();
-  api.use(express.json({ limit: '1mb' }));
-  api.use(healthRoutes(ctx));
-  api.use(collectionRoutes(ctx));
-  api.use(apiNotFound);
-  app.use('/api', api);
+  const passport = createPassport(ctx);
+  const api = new GuardedRouter('/api', csrfCheck);
+  api.router.use(express.json({ limit: '1mb' }));
+  api.router.use(sessionMiddleware(ctx));
+  api.router.use(passport.initialize());
+  api.router.use(passport.session());
+  registerHealthRoutes(api, ctx);
+  registerAuthRoutes(api, ctx, passport, mailer);
+  registerCollectionRoutes(api, ctx);
+  registerPeopleRoutes(api, ctx, mailer);
+  registerMailboxRoutes(api, ctx);
+  api.router.use(apiNotFound);
+  app.use('/api', api.router);
+  app.locals.routes = api.records;
 
   const indexHtml = join(ctx.config.clientDir, 'index.html');
   app.use(express.static(ctx.config.clientDir, { index: false, maxAge: '1h', setHeaders: immutableAssets }));

@@ -3,8 +3,11 @@ import { createApp } from './app.ts';
 import { loadConfig } from './config.ts';
 import { openDatabase } from './db/index.ts';
 import { logger } from './logger.ts';
+import { ensureDevCertificates } from '../../scripts/dev-certs.ts';
 
 const config = loadConfig();
+// development and tests: the fake IdP's certificate and ours, made once under .data/certs
+if (config.saml.enabled && config.saml.generateDevCertificates) await ensureDevCertificates(config.saml.certDir);
 const sequelize = openDatabase(config.db);
 await sequelize.authenticate();
 const app = createApp({ config, sequelize });

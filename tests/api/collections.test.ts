@@ -1,4 +1,3 @@
-import request from 'supertest';
 import type { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/src/app.ts';
@@ -6,6 +5,7 @@ import type { AppConfig } from '../../server/src/config.ts';
 import { Run } from '../../server/src/models/index.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
 import { makeCollection, makeItem, makeSubject, makeSuggestion } from '../helpers/fixtures.ts';
+import { signIn } from '../helpers/people.ts';
 
 let sequelize: Sequelize;
 let config: AppConfig;
@@ -18,7 +18,8 @@ beforeEach(async () => resetDatabase(sequelize));
 
 describe('GET /api/collections', () => {
   it('lists an empty catalogue as an empty list', async () => {
-    const res = await request(createApp({ config, sequelize })).get('/api/collections').expect(200);
+    const { agent } = await signIn(createApp({ config, sequelize }), 'manager');
+    const res = await agent.get('/api/collections').expect(200);
     expect(res.body).toEqual({ collections: [] });
   });
 
@@ -45,7 +46,8 @@ describe('GET /api/collections', () => {
     await makeSuggestion(approved, vessel);
     await Run.create({ collectionId: plates.id, trigger: 'manual', status: 'succeeded', requestedBy: null, startedAt: new Date('2026-11-30T02:00:00Z'), finishedAt: new Date('2026-11-30T02:05:00Z'), counts: {}, report: null, error: null });
 
-    const res = await request(createApp({ config, sequelize })).get('/api/collections').expect(200);
+    const { agent } = await signIn(createApp({ config, sequelize }), 'editor');
+    const res = await agent.get('/api/collections').expect(200);
     expect(res.body.collections.map((c: { slug: string }) => c.slug)).toEqual(['plates', 'photos']);
     const [p, g] = res.body.collections;
     expect(p).toMatchObject({

@@ -90,7 +90,7 @@ describe('the night-shift worker', () => {
     const week = 8 * 86_400_000;
     const old = new Date(Date.now() - week);
     await WorkerHeartbeat.create({ workerId: 'long-gone', hostname: 'x', pid: 2, startedAt: old, heartbeatAt: old, stoppedAt: old, currentJobId: null });
-    await sequelize.query("INSERT INTO sessions (sid, expires, data, createdAt, updatedAt) VALUES ('s-old', '2020-01-01', '{}', NOW(), NOW()), ('s-live', '2099-01-01', '{}', NOW(), NOW())");
+    await sequelize.query("INSERT INTO sessions (sid, expires, data) VALUES ('s-old', '2020-01-01', '{}'), ('s-live', '2099-01-01', '{}')");
     const job = await enqueueJob({ kind: 'housekeeping', idempotencyKey: 'housekeeping:test' });
 
     const worker = new NightShiftWorker({ sequelize, tasks, pollMs: 50, heartbeatMs: 1_000 });

@@ -2,6 +2,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { loadConfig, type AppConfig } from '../../server/src/config.ts';
 import { openDatabase } from '../../server/src/db/index.ts';
 import { createMigrator } from '../../server/src/db/migrator.ts';
+import { ensureDevCertificates } from '../../scripts/dev-certs.ts';
 
 /**
  * Opens the test database (migrated) for one test file. Refuses any database whose name does not end in
@@ -13,6 +14,7 @@ export async function openTestDatabase(overrides: Partial<AppConfig> = {}): Prom
   if (!config.db.name.endsWith('_test')) throw new Error(`refusing to run tests against database "${config.db.name}"`);
   const sequelize = openDatabase(config.db, { pool: 8 });
   await createMigrator(sequelize).up();
+  if (config.saml.enabled && config.saml.generateDevCertificates) await ensureDevCertificates(config.saml.certDir);
   return { config, sequelize };
 }
 

@@ -30,19 +30,19 @@ describe('fake SMTP server', () => {
     const transport = nodemailer.createTransport({ host: '127.0.0.1', port: smtp.port, secure: false, ignoreTLS: true });
     try {
       const first = await transport.sendMail({
-        from: 'Cartouche <cartouche@saltmere-harbour.example>',
-        to: 'halima.quarrie@saltmere-harbour.example',
+        from: 'Cartouche <cartouche@kestrelmouth-harbour.example>',
+        to: 'hester.amblecroft@kestrelmouth-harbour.example',
         subject: 'Weekly coverage: harbour photographs',
         text: 'Coverage rose to 62 % this week.',
       });
       const second = await transport.sendMail({
-        from: 'Cartouche <cartouche@saltmere-harbour.example>',
-        to: ['idris.penhallow@saltmere-harbour.example', 'ottilie.brennock@saltmere-harbour.example'],
-        subject: 'Relevé — Saltmere',
+        from: 'Cartouche <cartouche@kestrelmouth-harbour.example>',
+        to: ['odile.brackwater@kestrelmouth-harbour.example', 'mirela.quaystone@kestrelmouth-harbour.example'],
+        subject: 'Relevé — Kestrelmouth',
         text: 'The ledger is attached.',
         attachments: [{ filename: 'coverage-ledger-2025-w14.csv', content: 'subject,items\nlighthouse,12\n' }],
       });
-      expect(first.accepted).toEqual(['halima.quarrie@saltmere-harbour.example']);
+      expect(first.accepted).toEqual(['hester.amblecroft@kestrelmouth-harbour.example']);
       expect(second.accepted).toHaveLength(2);
       expect(second.response).toMatch(/^250 /);
     } finally {
@@ -54,11 +54,11 @@ describe('fake SMTP server', () => {
     const messages = await listMessages(mailDir);
     expect(messages).toHaveLength(2);
     const [newest, oldest] = messages as [(typeof messages)[number], (typeof messages)[number]];
-    expect(newest.subject).toBe('Relevé — Saltmere');
-    expect(newest.from).toBe('cartouche@saltmere-harbour.example');
-    expect(newest.to).toEqual(['idris.penhallow@saltmere-harbour.example', 'ottilie.brennock@saltmere-harbour.example']);
+    expect(newest.subject).toBe('Relevé — Kestrelmouth');
+    expect(newest.from).toBe('cartouche@kestrelmouth-harbour.example');
+    expect(newest.to).toEqual(['odile.brackwater@kestrelmouth-harbour.example', 'mirela.quaystone@kestrelmouth-harbour.example']);
     expect(oldest.subject).toBe('Weekly coverage: harbour photographs');
-    expect(oldest.to).toEqual(['halima.quarrie@saltmere-harbour.example']);
+    expect(oldest.to).toEqual(['hester.amblecroft@kestrelmouth-harbour.example']);
     expect(newest.id > oldest.id).toBe(true);
     expect(Date.parse(newest.receivedAt)).toBeGreaterThanOrEqual(Date.parse(oldest.receivedAt));
     expect(newest.size).toBeGreaterThan(oldest.size);
@@ -85,8 +85,8 @@ describe('fake SMTP server', () => {
   });
 
   it('decodes RFC 2047 encoded-words (UTF-8 B and Q, split words, other charsets)', () => {
-    expect(decodeEncodedWords('=?UTF-8?B?UmVsZXbDqSDigJQgU2FsdG1lcmU=?=')).toBe('Relevé — Saltmere');
-    expect(decodeEncodedWords('=?utf-8?Q?Relev=C3=A9_=E2=80=94_Saltmere?=')).toBe('Relevé — Saltmere');
+    expect(decodeEncodedWords('=?UTF-8?B?UmVsZXbDqSDigJQgS2VzdHJlbG1vdXRo?=')).toBe('Relevé — Kestrelmouth');
+    expect(decodeEncodedWords('=?utf-8?Q?Relev=C3=A9_=E2=80=94_Kestrelmouth?=')).toBe('Relevé — Kestrelmouth');
     // one character split over two words, white space between words dropped
     expect(decodeEncodedWords('=?UTF-8?Q?Relev=C3?= =?UTF-8?Q?=A9?= and more')).toBe('Relevé and more');
     expect(decodeEncodedWords('Re: =?ISO-8859-1?Q?caf=E9?= list')).toBe('Re: café list');

@@ -179,7 +179,7 @@ describe('fake identity provider', () => {
     const roles = new Set(demoIdentities.map((person) => person.role));
     for (const value of Object.values(ROLE_VALUES)) expect(roles).toContain(value);
     expect(demoIdentities.some((person) => !Object.values<string>(ROLE_VALUES).includes(person.role))).toBe(true);
-    for (const person of demoIdentities) expect(person.email).toMatch(/^[a-z.]+@saltmere-harbour\.example$/);
+    for (const person of demoIdentities) expect(person.email).toMatch(/^[a-z.]+@kestrelmouth-harbour\.example$/);
     expect(new Set(demoIdentities.map((person) => person.key)).size).toBe(demoIdentities.length);
   });
 

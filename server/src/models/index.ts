@@ -10,10 +10,11 @@ import { Run } from './run.ts';
 import { SubjectModel } from './subject-model.ts';
 import { Subject } from './subject.ts';
 import { Suggestion } from './suggestion.ts';
+import { UserToken } from './user-token.ts';
 import { User } from './user.ts';
 import { WorkerHeartbeat } from './worker-heartbeat.ts';
 
-export { AuditEvent, Collection, Embedding, Example, ExportFile, Item, Job, Run, Subject, SubjectModel, Suggestion, User, WorkerHeartbeat };
+export { AuditEvent, Collection, Embedding, Example, ExportFile, Item, Job, Run, Subject, SubjectModel, Suggestion, User, UserToken, WorkerHeartbeat };
 export { ROLES, type Role } from './user.ts';
 
 let initialised: Sequelize | null = null;
@@ -23,7 +24,7 @@ export function initModels(sequelize: Sequelize): void {
   if (initialised === sequelize) return;
   if (initialised) throw new Error('models are already bound to another Sequelize instance');
   initialised = sequelize;
-  for (const m of [User, Collection, Subject, Item, Example, Embedding, SubjectModel, Suggestion, Run, Job, WorkerHeartbeat, AuditEvent, ExportFile]) {
+  for (const m of [User, Collection, Subject, Item, Example, Embedding, SubjectModel, Suggestion, Run, Job, WorkerHeartbeat, AuditEvent, ExportFile, UserToken]) {
     m.initModel(sequelize);
   }
   const fk = (name: string, allowNull = false) => ({ foreignKey: { name, allowNull } });
@@ -54,6 +55,9 @@ export function initModels(sequelize: Sequelize): void {
   Collection.hasMany(Run, { ...fk('collectionId'), as: 'runs' });
   Run.belongsTo(Collection, { ...fk('collectionId'), as: 'collection' });
   Run.hasMany(Job, { ...fk('runId', true), as: 'jobs' });
+
+  User.hasMany(UserToken, { ...fk('userId'), as: 'tokens' });
+  UserToken.belongsTo(User, { ...fk('userId'), as: 'user' });
 
   AuditEvent.belongsTo(User, { ...fk('actorId', true), as: 'actor' });
   ExportFile.belongsTo(Collection, { ...fk('collectionId', true), as: 'collection' });

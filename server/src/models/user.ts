@@ -12,6 +12,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare samlNameId: string | null;
   declare active: CreationOptional<boolean>;
   declare lastSignInAt: Date | null;
+  /** optimistic lock for the people admin screen */
+  declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -26,10 +28,11 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         samlNameId: { type: DataTypes.STRING(255), allowNull: true },
         active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         lastSignInAt: { type: DataTypes.DATE(3), allowNull: true },
+        version: DataTypes.INTEGER.UNSIGNED,
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },
-      { sequelize, tableName: 'users', defaultScope: { attributes: { exclude: ['passwordHash'] } } },
+      { sequelize, tableName: 'users', version: true, defaultScope: { attributes: { exclude: ['passwordHash'] } } },
     );
   }
 }

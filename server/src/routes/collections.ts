@@ -1,11 +1,10 @@
-import { Router } from 'express';
+import { needs } from '../auth/permissions.ts';
 import type { AppContext } from '../context.ts';
+import type { GuardedRouter } from '../http/routes.ts';
 import { listCollectionSummaries } from '../services/collections.ts';
 
-export function collectionRoutes(ctx: AppContext): Router {
-  const router = Router();
-  router.get('/collections', async (_req, res) => {
+export function registerCollectionRoutes(api: GuardedRouter, ctx: AppContext): void {
+  api.route('get', '/collections', needs('collections:read'), async (_req, res) => {
     res.json({ collections: await listCollectionSummaries(ctx.sequelize) });
   });
-  return router;
 }
