@@ -56,7 +56,7 @@ export class Item extends Model<InferAttributes<Item>, InferCreationAttributes<I
         ocrText: { type: DataTypes.TEXT, allowNull: true },
         approvedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         approvedAt: { type: DataTypes.DATE(3), allowNull: true },
-        version: DataTypes.INTEGER.UNSIGNED,
+        version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },

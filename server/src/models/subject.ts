@@ -35,7 +35,7 @@ export class Subject extends Model<InferAttributes<Subject>, InferCreationAttrib
         conceptUri: { type: DataTypes.STRING(500), allowNull: true },
         status: { type: DataTypes.ENUM(...SUBJECT_STATUSES), allowNull: false, defaultValue: 'draft' },
         feedsAltText: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
-        version: DataTypes.INTEGER.UNSIGNED,
+        version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },

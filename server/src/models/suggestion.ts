@@ -32,7 +32,7 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
         state: { type: DataTypes.ENUM(...SUGGESTION_STATES), allowNull: false },
         decidedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         decidedAt: { type: DataTypes.DATE(3), allowNull: true },
-        version: DataTypes.INTEGER.UNSIGNED,
+        version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },

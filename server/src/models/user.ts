@@ -28,7 +28,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         samlNameId: { type: DataTypes.STRING(255), allowNull: true },
         active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         lastSignInAt: { type: DataTypes.DATE(3), allowNull: true },
-        version: DataTypes.INTEGER.UNSIGNED,
+        version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },

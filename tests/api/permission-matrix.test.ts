@@ -1,0 +1,134 @@
+import request from 'supertest';
+import type { Sequelize } from 'sequelize';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createApp, type CartoucheApp } from '../../server/src/app.ts';
+import { can, type Access } from '../../server/src/auth/permissions.ts';
+import type { AppConfig } from '../../server/src/config.ts';
+import type { RouteRecord } from '../../server/src/http/routes.ts';
+import { createMailer } from '../../server/src/mail/mailer.ts';
+import { listMessages } from '../../server/src/mail/mailbox.ts';
+import { ROLES, type Role } from '../../server/src/models/index.ts';
+import { issueToken } from '../../server/src/services/people.ts';
+import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
+import { startTestSmtp } from '../helpers/mail.ts';
+import { TEST_PASSWORD, makePerson, signIn } from '../helpers/people.ts';
+
+let sequelize: Sequelize;
+let config: AppConfig;
+let smtp: Awaited<ReturnType<typeof startTestSmtp>>;
+let app: CartoucheApp;
+
+beforeAll(async () => {
+  ({ sequelize, config } = await openTestDatabase());
+  smtp = await startTestSmtp();
+  config = { ...config, smtp: { ...config.smtp, port: smtp.port }, mailDir: smtp.mailDir };
+  await resetDatabase(sequelize);
+  app = createApp({ config, sequelize });
+});
+afterAll(async () => {
+  await smtp.close();
+  await sequelize.close();
+});
+
+interface Sample {
+  path?: string;
+  body?: object;
+  form?: Record<string, string>;
+}
+
+/**
+ * A valid request for every route (a new route without one fails the first test). Builders make fresh
+ * targets per call, because a sample may change what it touches.
+ */
+const samples: Record<string, () => Promise<Sample>> = {
+  'get /api/health': async () => ({}),
+  'get /api/auth/session': async () => ({}),
+  'post /api/auth/login': async () => ({ body: { email: (await makePerson('editor')).email, password: TEST_PASSWORD } }),
+  'post /api/auth/logout': async () => ({}),
+  'post /api/auth/password-reset': async () => ({ body: { email: 'someone@people.example' } }),
+  'get /api/auth/tokens/:token': async () => ({ path: `/api/auth/tokens/${await issueToken((await makePerson('editor')).id, 'password_reset', null)}` }),
+  'post /api/auth/password': async () => ({ body: { token: await issueToken((await makePerson('editor')).id, 'password_reset', null), password: 'a long enough passphrase' } }),
+  'get /api/auth/saml/login': async () => ({}),
+  'post /api/auth/saml/acs': async () => ({ form: { SAMLResponse: Buffer.from('<not-saml/>').toString('base64') } }),
+  'get /api/auth/saml/metadata': async () => ({}),
+  'get /api/collections': async () => ({}),
+  'get /api/people': async () => ({}),
+  'post /api/people/invitations': async () => ({ body: { email: `invitee${Math.random().toString(36).slice(2)}@people.example`, displayName: 'Invitee', role: 'editor' } }),
+  'patch /api/people/:id': async () => {
+    const p = await makePerson('editor');
+    return { path: `/api/people/${p.id}`, body: { role: 'manager', version: p.version } };
+  },
+  'post /api/people/:id/invitation': async () => {
+    const p = await makePerson('editor');
+    await p.update({ passwordHash: null });
+    return { path: `/api/people/${p.id}/invitation` };
+  },
+  'get /api/mailbox': async () => ({}),
+  'get /api/mailbox/:id': async () => {
+    await createMailer(config).send({ to: 'matrix@people.example', subject: 'Matrix', text: 'A captured message.' });
+    const [latest] = await listMessages(config.mailDir);
+    return { path: `/api/mailbox/${latest!.id}` };
+  },
+};
+
+const key = (r: RouteRecord) => `${r.method} ${r.path}`;
+
+/** Every route Express itself knows under /api, read from the router stack (so nothing registered around the guard escapes). */
+function expressRoutes(a: CartoucheApp): string[] {
+  const out: string[] = [];
+  const walk = (stack: Array<{ route?: { path: string; methods: Record<string, boolean> }; handle?: { stack?: unknown[] }; matchers?: unknown }>, prefix: string) => {
+    for (const layer of stack) {
+      if (layer.route) for (const m of Object.keys(layer.route.methods)) out.push(`${m} ${prefix}${layer.route.path}`);
+      else if (layer.handle?.stack) walk(layer.handle.stack as typeof stack, prefix || '/api');
+    }
+  };
+  walk((a as unknown as { router: { stack: Parameters<typeof walk>[0] } }).router.stack, '');
+  return out.filter((r) => r.includes(' /api/'));
+}
+
+function expected(access: Access, role: Role | null): 'ok' | 401 | 403 {
+  if (access.kind === 'public') return 'ok';
+  if (role === null) return 401;
+  if (access.kind === 'signed-in') return 'ok';
+  return can(role, access.permission) ? 'ok' : 403;
+}
+
+describe('the permission matrix, enforced on every API route', () => {
+  it('knows every route: the guarded list equals what Express serves, and each has a sample request', () => {
+    const records = app.locals.routes.map(key).sort();
+    expect(expressRoutes(app).sort()).toEqual(records);
+    expect(records.filter((k) => !samples[k])).toEqual([]);
+    expect(records.length).toBeGreaterThanOrEqual(15);
+  });
+
+  it('every state-changing route checks the CSRF token unless it says why not', () => {
+    const unchecked = app.locals.routes.filter((r) => r.method !== 'get' && !r.csrf).map(key);
+    expect(unchecked).toEqual(['post /api/auth/saml/acs']);
+  });
+
+  for (const who of [null, ...ROLES] as Array<Role | null>) {
+    it(`answers ${who ?? 'a stranger'} as the matrix says`, async () => {
+      const results: string[] = [];
+      const wrong: string[] = [];
+      for (const route of app.locals.routes) {
+        const sample = await samples[key(route)]!();
+        let agent: ReturnType<typeof request.agent>;
+        let csrf: string;
+        if (who) ({ agent, csrf } = await signIn(app, who));
+        else {
+          agent = request.agent(app);
+          csrf = (await agent.get('/api/auth/session')).body.csrfToken;
+        }
+        let req = agent[route.method](sample.path ?? route.path).set('x-csrf-token', csrf).redirects(0);
+        if (sample.form) req = req.type('form').send(sample.form);
+        else if (sample.body) req = req.send(sample.body);
+        const res = await req;
+        const want = expected(route.access, who);
+        const ok = want === 'ok' ? res.status >= 200 && res.status < 400 : res.status === want;
+        results.push(`${key(route)} → ${res.status}`);
+        if (!ok) wrong.push(`${key(route)}: expected ${want}, got ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
+      }
+      expect(wrong, results.join('\n')).toEqual([]);
+    });
+  }
+});
