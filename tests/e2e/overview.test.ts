@@ -5,7 +5,8 @@ import type { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/src/app.ts';
 import { WorkerHeartbeat } from '../../server/src/models/index.ts';
-import { assertClientBuilt, axeViolations, clientBuildDir, launchBrowser, screenshot } from '../helpers/browser.ts';
+import { assertClientBuilt, axeViolations, clientBuildDir, launchBrowser, screenshot, signInThroughPage } from '../helpers/browser.ts';
+import { TEST_PASSWORD, makePerson } from '../helpers/people.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
 import { makeCollection, makeItem, makeSubject, makeSuggestion } from '../helpers/fixtures.ts';
 
@@ -13,6 +14,7 @@ let sequelize: Sequelize;
 let server: Server;
 let browser: Browser;
 let base: string;
+let managerEmail: string;
 
 beforeAll(async () => {
   assertClientBuilt();
@@ -26,6 +28,7 @@ beforeAll(async () => {
   for (let i = 0; i < 3; i++) await makeItem(plates, { state: 'approved', approvedAt: new Date() });
   for (let i = 0; i < 5; i++) await makeSuggestion(await makeItem(plates), ship);
   await makeCollection({ slug: 'photos', name: 'Quay photographs', medium: 'photograph' });
+  managerEmail = (await makePerson('manager')).email;
   const now = new Date();
   await WorkerHeartbeat.create({ workerId: 'e2e', hostname: 'e2e', pid: 1, startedAt: now, heartbeatAt: now, stoppedAt: null, currentJobId: null });
 
@@ -50,7 +53,7 @@ describe('the overview in a real browser', () => {
     page.on('request', (r) => {
       if (!r.url().startsWith(base) && !r.url().startsWith('data:')) external.push(r.url());
     });
-    await page.goto(base + '/');
+    await signInThroughPage(page, base, managerEmail, TEST_PASSWORD);
     const plates = page.getByRole('listitem').filter({ has: page.getByRole('heading', { name: 'Harbour plates' }) });
     await expect.poll(() => plates.count()).toBe(1);
     const text = (await plates.innerText()).replace(/\s+/g, ' ');
@@ -72,7 +75,7 @@ describe('the overview in a real browser', () => {
     for (const width of [1280, 390]) {
       // bypassCSP only lets axe-core's inline script in; the app's own CSP forbids inline scripts
       const page = await browser.newPage({ viewport: { width, height: 900 }, bypassCSP: true });
-      await page.goto(base + '/');
+      await signInThroughPage(page, base, managerEmail, TEST_PASSWORD);
       await page.getByRole('heading', { name: 'Harbour plates' }).waitFor();
       const violations = await axeViolations(page);
       expect(violations, JSON.stringify(violations, null, 2)).toEqual([]);
@@ -83,7 +86,9 @@ describe('the overview in a real browser', () => {
 
   it('can be worked from the keyboard: the first Tab reaches the skip link, which moves focus to the main content', async () => {
     const page = await browser.newPage();
-    await page.goto(base + '/');
+    await signInThroughPage(page, base, managerEmail, TEST_PASSWORD);
+    await page.getByRole('heading', { name: 'Harbour plates' }).waitFor();
+    await page.reload();
     await page.getByRole('heading', { name: 'Harbour plates' }).waitFor();
     await page.keyboard.press('Tab');
     const focused = await page.evaluate(() => document.activeElement?.textContent?.trim());
@@ -95,6 +100,7 @@ describe('the overview in a real browser', () => {
 
   it('answers an unknown address inside the app with a way home', async () => {
     const page = await browser.newPage();
+    await signInThroughPage(page, base, managerEmail, TEST_PASSWORD);
     await page.goto(base + '/no/such/page');
     await expect.poll(() => page.getByRole('link', { name: /overview|home/i }).count()).toBeGreaterThan(0);
     await page.close();

@@ -48,3 +48,12 @@ export const clientBuildDir = join(projectRoot, 'dist', 'client');
 export function assertClientBuilt(): void {
   if (!existsSync(join(clientBuildDir, 'index.html'))) throw new Error('dist/client is missing: run `npm run build` (npm test does it for you)');
 }
+
+/** Signs in through the sign-in page the way a person would: e-mail, password, the Sign in button. */
+export async function signInThroughPage(page: Page, base: string, email: string, password: string): Promise<void> {
+  await page.goto(base + '/sign-in');
+  await page.getByLabel('E-mail address').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+}

@@ -5,11 +5,21 @@
  * RFC 9457 problem details: the server's own when it sends application/problem+json,
  * otherwise a description composed here of what actually went wrong (no connection,
  * an unexpected status, an unreadable body).
+ *
+ * Every state-changing request (POST, PUT, PATCH, DELETE) carries the session's CSRF token in
+ * the `x-csrf-token` header. The token comes from a CsrfSource (the cached session, see
+ * `connectCsrfToSession` in session.ts). When the server refuses a token as stale (403 with
+ * type `/problems/csrf`), the source is asked for a fresh one and the request is sent once more.
  */
 
-/** One entry of the optional `errors` member, usually pointing at an invalid input field. */
+/**
+ * One entry of the optional `errors` member, usually pointing at an invalid input field.
+ * The Cartouche API sends `{ path, message }`; `detail` always holds the message, whichever
+ * member name the server used, and `path` the dotted field path when one was given.
+ */
 export interface ProblemFieldError {
   detail: string;
+  path?: string;
   pointer?: string;
   [member: string]: unknown;
 }
@@ -27,10 +37,13 @@ export interface ProblemDetails {
 export class ApiError extends Error {
   override readonly name = 'ApiError';
   readonly problem: ProblemDetails;
+  /** Seconds the server asked the client to wait (Retry-After), when it said so. */
+  readonly retryAfterSeconds: number | undefined;
 
-  constructor(problem: ProblemDetails, options?: { cause?: unknown }) {
+  constructor(problem: ProblemDetails, options?: { cause?: unknown; retryAfterSeconds?: number }) {
     super(problem.detail ? `${problem.title}: ${problem.detail}` : problem.title, options);
     this.problem = problem;
+    this.retryAfterSeconds = options?.retryAfterSeconds;
   }
 
   /** HTTP status of the failed response; 0 when no response arrived at all. */
@@ -47,6 +60,34 @@ const PROBLEM_MEDIA_TYPE = 'application/problem+json';
 const JSON_MEDIA_TYPE = 'application/json';
 
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+
+const CSRF_HEADER = 'x-csrf-token';
+const CSRF_PROBLEM_TYPE = '/problems/csrf';
+
+/** Where state-changing requests get their CSRF token from. */
+export interface CsrfSource {
+  /** The token known now, if any. */
+  current(): string | undefined;
+  /** Asks the server for the session again and returns its token. */
+  refresh(): Promise<string | undefined>;
+}
+
+let csrfSource: CsrfSource | undefined;
+
+/** Installs the token source; the app does this once at start (see main.tsx). */
+export function setCsrfSource(source: CsrfSource | undefined): void {
+  csrfSource = source;
+}
+
+function changesState(method: Method): boolean {
+  return method !== 'GET';
+}
+
+/** The server's type may be relative (`/problems/csrf`) or resolved against its origin. */
+function isCsrfProblem(error: ApiError): boolean {
+  const { type } = error.problem;
+  return error.status === 403 && (type === CSRF_PROBLEM_TYPE || type.endsWith(CSRF_PROBLEM_TYPE));
+}
 
 export interface RequestOptions {
   signal?: AbortSignal;
@@ -71,11 +112,26 @@ function readFieldErrors(value: unknown): ProblemFieldError[] | undefined {
   if (!Array.isArray(value)) return undefined;
   const entries: ProblemFieldError[] = [];
   for (const entry of value) {
-    if (isRecord(entry) && typeof entry.detail === 'string') {
-      entries.push({ ...entry, detail: entry.detail });
-    }
+    if (!isRecord(entry)) continue;
+    const detail =
+      typeof entry.detail === 'string' ? entry.detail : typeof entry.message === 'string' ? entry.message : undefined;
+    if (detail === undefined) continue;
+    const fieldError: ProblemFieldError = { ...entry, detail };
+    if (typeof entry.path === 'string') fieldError.path = entry.path;
+    entries.push(fieldError);
   }
   return entries;
+}
+
+/** Retry-After as seconds: either delay-seconds or an HTTP date (RFC 9110 §10.2.3). */
+function readRetryAfter(response: Response): number | undefined {
+  const header = response.headers.get('retry-after');
+  if (header === null || header.trim() === '') return undefined;
+  const trimmed = header.trim();
+  if (/^\d+$/.test(trimmed)) return Number(trimmed);
+  const at = Date.parse(trimmed);
+  if (Number.isNaN(at)) return undefined;
+  return Math.max(0, Math.ceil((at - Date.now()) / 1000));
 }
 
 /** Accepts what the server sent, filling only members the RFC lets a client default. */
@@ -107,10 +163,31 @@ function isAbort(error: unknown, signal: AbortSignal | undefined): boolean {
 }
 
 async function request<T>(method: Method, path: string, body: unknown, options: RequestOptions): Promise<T> {
+  if (!changesState(method) || csrfSource === undefined) return send<T>(method, path, body, options, undefined);
+  const source = csrfSource;
+  const token = source.current() ?? (await source.refresh());
+  try {
+    return await send<T>(method, path, body, options, token);
+  } catch (error) {
+    if (!isApiError(error) || !isCsrfProblem(error)) throw error;
+    // The session was rotated or expired since the token was read: fetch it again, then retry once.
+    const fresh = await source.refresh();
+    return send<T>(method, path, body, options, fresh);
+  }
+}
+
+async function send<T>(
+  method: Method,
+  path: string,
+  body: unknown,
+  options: RequestOptions,
+  csrfToken: string | undefined,
+): Promise<T> {
   const headers: Record<string, string> = {
     Accept: `${JSON_MEDIA_TYPE}, ${PROBLEM_MEDIA_TYPE}`,
     ...options.headers,
   };
+  if (csrfToken !== undefined) headers[CSRF_HEADER] = csrfToken;
   const init: RequestInit = { method, headers, credentials: 'same-origin' };
   if (options.signal) init.signal = options.signal;
   if (body !== undefined) {
@@ -151,7 +228,8 @@ async function request<T>(method: Method, path: string, body: unknown, options: 
     if (problem.detail === '') {
       problem.detail = `The server answered ${method} ${path} with status ${response.status} and gave no further detail.`;
     }
-    throw new ApiError(problem);
+    const retryAfterSeconds = readRetryAfter(response);
+    throw new ApiError(problem, retryAfterSeconds === undefined ? undefined : { retryAfterSeconds });
   }
 
   if (response.status === 204 || response.status === 205) return undefined as T;

@@ -1,5 +1,7 @@
-import { QueryClient } from '@tanstack/react-query';
+import { MutationCache, QueryCache, QueryClient } from '@tanstack/react-query';
 import { isApiError } from './http';
+import { queryKeys } from './query-keys';
+import { sessionMayHaveEnded } from './session';
 
 const MAX_RETRIES = 2;
 
@@ -11,8 +13,24 @@ function shouldRetry(failureCount: number, error: unknown): boolean {
   return failureCount < MAX_RETRIES;
 }
 
+function isUnauthorized(error: unknown): boolean {
+  return isApiError(error) && error.status === 401;
+}
+
 export function createQueryClient(): QueryClient {
-  return new QueryClient({
+  // Any 401 while someone is signed in means the session ended on the server: check the session,
+  // and the signed-in area sends the person to sign in again (see routes/signed-in-area.tsx).
+  const queryClient: QueryClient = new QueryClient({
+    queryCache: new QueryCache({
+      onError: (error, query) => {
+        if (isUnauthorized(error) && query.queryKey[0] !== queryKeys.session()[0]) sessionMayHaveEnded(queryClient);
+      },
+    }),
+    mutationCache: new MutationCache({
+      onError: (error) => {
+        if (isUnauthorized(error)) sessionMayHaveEnded(queryClient);
+      },
+    }),
     defaultOptions: {
       queries: {
         retry: shouldRetry,
@@ -24,4 +42,5 @@ export function createQueryClient(): QueryClient {
       },
     },
   });
+  return queryClient;
 }

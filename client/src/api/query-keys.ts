@@ -4,9 +4,22 @@
  * refreshes everything below it.
  */
 export const queryKeys = {
+  /** Who is signed in, their permissions and the CSRF token; see session.ts. */
+  session: () => ['session'] as const,
+  /** What an invitation or password-reset link stands for. */
+  passwordLink: (token: string) => ['password-link', token] as const,
   health: () => ['health'] as const,
   collections: {
     all: ['collections'] as const,
     list: () => [...queryKeys.collections.all, 'list'] as const,
+  },
+  people: {
+    all: ['people'] as const,
+    list: () => [...queryKeys.people.all, 'list'] as const,
+  },
+  mailbox: {
+    all: ['mailbox'] as const,
+    list: () => [...queryKeys.mailbox.all, 'list'] as const,
+    message: (id: string) => [...queryKeys.mailbox.all, 'message', id] as const,
   },
 } as const;

@@ -4,6 +4,7 @@
  */
 
 const integer = new Intl.NumberFormat(undefined, { maximumFractionDigits: 0 });
+const oneDecimal = new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 });
 
 /** Whole percentages, truncated so that an unfinished collection never reads "100 %". */
 const wholePercent = new Intl.NumberFormat(undefined, {
@@ -20,6 +21,7 @@ const finePercent = new Intl.NumberFormat(undefined, {
 });
 
 const dateTime = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+const timeOfDay = new Intl.DateTimeFormat(undefined, { timeStyle: 'short' });
 
 export function formatCount(value: number): string {
   return integer.format(value);
@@ -44,4 +46,16 @@ export function formatDateTime(iso: string): string | null {
   const date = new Date(iso);
   if (Number.isNaN(date.getTime())) return null;
   return dateTime.format(date);
+}
+
+/** A clock time for people, e.g. "14:32". */
+export function formatTime(date: Date): string {
+  return timeOfDay.format(date);
+}
+
+/** A byte count for people: "812 bytes", "3.4 kB" (decimal units). */
+export function formatBytes(bytes: number): string {
+  if (bytes < 1000) return bytes === 1 ? '1 byte' : `${formatCount(bytes)} bytes`;
+  if (bytes < 1_000_000) return `${oneDecimal.format(bytes / 1000)} kB`;
+  return `${oneDecimal.format(bytes / 1_000_000)} MB`;
 }

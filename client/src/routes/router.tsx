@@ -1,22 +1,68 @@
+import type { QueryClient } from '@tanstack/react-query';
 import { createBrowserRouter } from 'react-router';
-import { AppLayout } from './app-layout';
+import { AppLayout, type RouteHandle } from './app-layout';
+import { loadSession, redirectSignedIn, requireSignIn } from './guards';
+import { MailboxRoute } from './mailbox';
 import { NotFoundRoute } from './not-found';
 import { OverviewRoute } from './overview';
+import { PeopleRoute } from './people';
+import { RequirePermission } from './require-permission';
+import { ResetPasswordRoute } from './reset-password';
 import { RootErrorPage, RouteErrorPanel } from './route-error';
+import { SetPasswordRoute } from './set-password';
+import { SignInRoute } from './sign-in';
+import { SignedInArea } from './signed-in-area';
+import { StartingUp } from './starting-up';
 
-export function createRouter() {
+const centred: RouteHandle = { centred: true };
+
+export function createRouter(queryClient: QueryClient) {
   return createBrowserRouter([
     {
       path: '/',
       Component: AppLayout,
+      HydrateFallback: StartingUp,
       errorElement: <RootErrorPage />,
+      // Nothing renders before the session is known: the header, the guards and the screens all read it.
+      loader: async () => {
+        await loadSession(queryClient);
+        return null;
+      },
       children: [
         {
           // Errors in a screen render inside the layout, so navigation stays usable.
           errorElement: <RouteErrorPanel />,
           children: [
-            { index: true, Component: OverviewRoute },
-            { path: '*', Component: NotFoundRoute },
+            // Open to everyone: signing in and choosing a password. Their content is centred.
+            { path: 'sign-in', loader: redirectSignedIn(queryClient), Component: SignInRoute, handle: centred },
+            { path: 'reset-password', Component: ResetPasswordRoute, handle: centred },
+            { path: 'welcome', element: <SetPasswordRoute expected="invitation" />, handle: centred },
+            { path: 'set-password', element: <SetPasswordRoute expected="password_reset" />, handle: centred },
+            {
+              // Everything else needs someone signed in.
+              loader: requireSignIn(queryClient),
+              Component: SignedInArea,
+              children: [
+                { index: true, Component: OverviewRoute },
+                {
+                  path: 'people',
+                  element: (
+                    <RequirePermission permission="people:manage" screen="People">
+                      <PeopleRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'mailbox',
+                  element: (
+                    <RequirePermission permission="mailbox:read" screen="Mailbox">
+                      <MailboxRoute />
+                    </RequirePermission>
+                  ),
+                },
+                { path: '*', Component: NotFoundRoute },
+              ],
+            },
           ],
         },
       ],

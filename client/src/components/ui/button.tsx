@@ -1,10 +1,11 @@
-import type { ButtonHTMLAttributes } from 'react';
+import type { ButtonHTMLAttributes, Ref } from 'react';
 import { cx } from './cx';
 
 type Variant = 'primary' | 'secondary';
 
 export interface ButtonProps extends ButtonHTMLAttributes<HTMLButtonElement> {
   variant?: Variant;
+  ref?: Ref<HTMLButtonElement>;
 }
 
 const variants: Record<Variant, string> = {
@@ -21,7 +22,7 @@ export function Button({ variant = 'secondary', type = 'button', className, ...r
       className={cx(
         'inline-flex min-h-11 min-w-11 items-center justify-center gap-2 rounded-control border-2 px-4 py-2',
         'font-bold leading-tight transition-colors duration-150',
-        'disabled:cursor-not-allowed disabled:opacity-70',
+        'disabled:cursor-not-allowed disabled:opacity-70 aria-disabled:cursor-progress',
         variants[variant],
         className,
       )}

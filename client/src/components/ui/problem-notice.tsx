@@ -16,6 +16,8 @@ export interface ProblemNoticeProps {
   announce?: boolean;
   action?: ReactNode;
   className?: string;
+  /** For linking the notice to the fields it concerns (aria-describedby). */
+  id?: string;
 }
 
 /** A calm, unmistakable notice that something did not work, with what to do next. */
@@ -28,10 +30,12 @@ export function ProblemNotice({
   announce = false,
   action,
   className,
+  id,
 }: ProblemNoticeProps) {
   const Heading = (['h1', 'h2', 'h3'] as const)[headingLevel - 1] ?? 'h2';
   return (
     <div
+      id={id}
       role={announce ? 'alert' : undefined}
       className={cx('rounded-card border-2 border-ink border-l-[6px] bg-raised p-5 sm:p-6', className)}
     >
