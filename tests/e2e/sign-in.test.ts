@@ -92,7 +92,9 @@ describe('signing in in a real browser', () => {
     const admin = await makePerson('admin');
     const page = await browser.newPage({ bypassCSP: true });
     await signInThroughPage(page, base, admin.email, TEST_PASSWORD);
-    await page.goto(base + '/people');
+    // the development mailbox entry appears right after sign-in, without a reload
+    await page.getByRole('navigation').getByRole('link', { name: 'Mailbox' }).waitFor();
+    await page.getByRole('navigation').getByRole('link', { name: 'People' }).click();
     await page.getByRole('heading', { name: 'People', level: 1 }).waitFor();
     expect(await axeViolations(page)).toEqual([]);
     const invite = page.getByRole('region', { name: /invite/i }).or(page.locator('form').filter({ hasText: /invite/i })).first();

@@ -165,6 +165,8 @@ function storeSession(queryClient: QueryClient, change: Pick<Session, 'user' | '
 function startSignedIn(queryClient: QueryClient, signedIn: SignedIn): void {
   forgetSignedInData(queryClient);
   storeSession(queryClient, signedIn);
+  // what the person may see beyond their permissions (e.g. the development mailbox) comes with the full session
+  void queryClient.invalidateQueries({ queryKey: queryKeys.session() });
 }
 
 /**
