@@ -2,6 +2,7 @@ import type { QueryInterface } from 'sequelize';
 import type { MigrationParams } from 'umzug';
 import * as m0001 from './0001-initial-schema.ts';
 import * as m0002 from './0002-user-tokens.ts';
+import * as m0003 from './0003-intake.ts';
 
 export interface MigrationModule {
   up(params: MigrationParams<QueryInterface>): Promise<void>;
@@ -15,4 +16,5 @@ export interface MigrationModule {
 export const migrations: Array<[name: string, module: MigrationModule]> = [
   ['0001-initial-schema', m0001],
   ['0002-user-tokens', m0002],
+  ['0003-intake', m0003],
 ];

@@ -13,8 +13,11 @@ import { createMailer, type Mailer } from './mail/mailer.ts';
 import { registerAuthRoutes } from './routes/auth.ts';
 import { registerCollectionRoutes } from './routes/collections.ts';
 import { registerHealthRoutes } from './routes/health.ts';
+import { registerIntakeRoutes } from './routes/intake.ts';
 import { registerMailboxRoutes } from './routes/mailbox.ts';
 import { registerPeopleRoutes } from './routes/people.ts';
+import { registerRunRoutes } from './routes/runs.ts';
+import { registerSubjectRoutes } from './routes/subjects.ts';
 
 export interface CartoucheApp extends Express {
   locals: Express['locals'] & { routes: RouteRecord[] };
@@ -50,6 +53,9 @@ export function createApp(ctx: AppContext, opts: { mailer?: Mailer } = {}): Cart
   registerHealthRoutes(api, ctx);
   registerAuthRoutes(api, ctx, passport, mailer);
   registerCollectionRoutes(api, ctx);
+  registerIntakeRoutes(api, ctx);
+  registerSubjectRoutes(api, ctx);
+  registerRunRoutes(api, ctx);
   registerPeopleRoutes(api, ctx, mailer);
   registerMailboxRoutes(api, ctx);
   api.router.use(apiNotFound);

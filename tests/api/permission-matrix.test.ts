@@ -9,6 +9,14 @@ import { createMailer } from '../../server/src/mail/mailer.ts';
 import { listMessages } from '../../server/src/mail/mailbox.ts';
 import { ROLES, type Role } from '../../server/src/models/index.ts';
 import { issueToken } from '../../server/src/services/people.ts';
+import { startRun } from '../../server/src/services/runs.ts';
+import sharp from 'sharp';
+import { Example, Item } from '../../server/src/models/index.ts';
+import { embedStoredFile, processEmbedder } from '../../server/src/services/features.ts';
+import { ingestFile, intakeLimits } from '../../server/src/services/ingest.ts';
+import { previewImport } from '../../server/src/services/metadata-import.ts';
+import { Storage } from '../../server/src/services/storage.ts';
+import { makeCollection, makeSubject } from '../helpers/fixtures.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
 import { startTestSmtp } from '../helpers/mail.ts';
 import { TEST_PASSWORD, makePerson, signIn } from '../helpers/people.ts';
@@ -34,6 +42,40 @@ interface Sample {
   path?: string;
   body?: object;
   form?: Record<string, string>;
+  /** multipart file parts */
+  files?: Array<{ field: string; name: string; data: Buffer }>;
+  /** multipart text fields sent with the files */
+  fields?: Record<string, string>;
+}
+
+/** a subject with one stored, embedded example */
+async function subjectWithExample(): Promise<{ subjectId: number; exampleId: number }> {
+  const subject = await makeSubject(await makeCollection());
+  const storage = new Storage(config.storageDir);
+  const fileKey = await storage.put(await samplePng(++shade));
+  const example = await Example.create({ subjectId: subject.id, medium: 'sketch', origin: 'uploaded', fileKey, itemId: null, createdBy: null });
+  await embedStoredFile(await processEmbedder(), storage, { type: 'example', id: example.id }, fileKey);
+  return { subjectId: subject.id, exampleId: example.id };
+}
+
+const samplePng = (shade: number) => sharp({ create: { width: 24, height: 16, channels: 3, background: { r: shade % 256, g: 90, b: 120 } } }).png().toBuffer();
+let shade = 0;
+/** an item with a scan and its derivatives, brought in through the intake service */
+async function ingestedItem(): Promise<number> {
+  const c = await makeCollection();
+  const outcome = await ingestFile(
+    { sequelize, storage: new Storage(config.storageDir), limits: intakeLimits({}) },
+    { collectionId: c.id, fileName: 'matrix.png', source: { buffer: await samplePng(++shade) }, origin: 'upload' },
+  );
+  if (outcome.outcome !== 'ingested') throw new Error(`sample scan not ingested: ${JSON.stringify(outcome)}`);
+  return outcome.itemId;
+}
+/** a collection with one item and a previewed sheet that would change it */
+async function previewedImport(): Promise<{ collectionId: number; importId: number }> {
+  const itemId = await ingestedItem();
+  const { collectionId } = (await Item.findByPk(itemId))!;
+  const preview = await previewImport({ collectionId, fileName: 'matrix.csv', data: Buffer.from('file name,caption\nmatrix.png,A harbour plate\n'), actorId: null, maxRows: 10 });
+  return { collectionId, importId: preview.id };
 }
 
 /**
@@ -52,6 +94,22 @@ const samples: Record<string, () => Promise<Sample>> = {
   'post /api/auth/saml/acs': async () => ({ form: { SAMLResponse: Buffer.from('<not-saml/>').toString('base64') } }),
   'get /api/auth/saml/metadata': async () => ({}),
   'get /api/collections': async () => ({}),
+  'get /api/collections/:id/runs': async () => ({ path: `/api/collections/${(await makeCollection()).id}/runs` }),
+  'post /api/collections/:id/runs': async () => ({ path: `/api/collections/${(await makeCollection()).id}/runs` }),
+  'get /api/runs/:id': async () => ({ path: `/api/runs/${(await startRun(sequelize, (await makeCollection()).id, 'manual', null)).id}` }),
+  'post /api/runs/:id/cancel': async () => ({ path: `/api/runs/${(await startRun(sequelize, (await makeCollection()).id, 'manual', null)).id}/cancel` }),
+  'get /api/collections/:id/subjects': async () => ({ path: `/api/collections/${(await makeCollection()).id}/subjects` }),
+  'get /api/subjects/:id': async () => ({ path: `/api/subjects/${(await makeSubject(await makeCollection())).id}` }),
+  'post /api/subjects/:id/examples': async () => ({
+    path: `/api/subjects/${(await makeSubject(await makeCollection())).id}/examples`,
+    fields: { medium: 'sketch' },
+    files: [{ field: 'files', name: 'sketch.png', data: await samplePng(++shade) }],
+  }),
+  'delete /api/examples/:id': async () => ({ path: `/api/examples/${(await subjectWithExample()).exampleId}` }),
+  'get /api/examples/:id/image': async () => ({ path: `/api/examples/${(await subjectWithExample()).exampleId}/image` }),
+  'get /api/subjects/:id/preview': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/preview` }),
+  'post /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models`, body: { mode: 'from-examples' } }),
+  'get /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models` }),
   'get /api/people': async () => ({}),
   'post /api/people/invitations': async () => ({ body: { email: `invitee${Math.random().toString(36).slice(2)}@people.example`, displayName: 'Invitee', role: 'editor' } }),
   'patch /api/people/:id': async () => {
@@ -64,6 +122,25 @@ const samples: Record<string, () => Promise<Sample>> = {
     return { path: `/api/people/${p.id}/invitation` };
   },
   'get /api/mailbox': async () => ({}),
+  'get /api/intake/settings': async () => ({}),
+  'post /api/collections/:id/items/upload': async () => ({
+    path: `/api/collections/${(await makeCollection()).id}/items/upload`,
+    files: [{ field: 'files', name: 'plate.png', data: await samplePng(++shade) }],
+  }),
+  'get /api/items/:id/thumbnail': async () => ({ path: `/api/items/${await ingestedItem()}/thumbnail` }),
+  'get /api/items/:id/view': async () => ({ path: `/api/items/${await ingestedItem()}/view` }),
+  'post /api/collections/:id/imports': async () => {
+    const { collectionId } = (await Item.findByPk(await ingestedItem()))!;
+    return { path: `/api/collections/${collectionId}/imports`, files: [{ field: 'sheet', name: 'catalogue.csv', data: Buffer.from('file name,caption\nmatrix.png,A plate\n') }] };
+  },
+  'get /api/collections/:id/imports/:importId': async () => {
+    const { collectionId, importId } = await previewedImport();
+    return { path: `/api/collections/${collectionId}/imports/${importId}` };
+  },
+  'post /api/collections/:id/imports/:importId/apply': async () => {
+    const { collectionId, importId } = await previewedImport();
+    return { path: `/api/collections/${collectionId}/imports/${importId}/apply` };
+  },
   'get /api/mailbox/:id': async () => {
     await createMailer(config).send({ to: 'matrix@people.example', subject: 'Matrix', text: 'A captured message.' });
     const [latest] = await listMessages(config.mailDir);
@@ -120,7 +197,11 @@ describe('the permission matrix, enforced on every API route', () => {
           csrf = (await agent.get('/api/auth/session')).body.csrfToken;
         }
         let req = agent[route.method](sample.path ?? route.path).set('x-csrf-token', csrf).redirects(0);
-        if (sample.form) req = req.type('form').send(sample.form);
+        if (sample.files) {
+          for (const [name, value] of Object.entries(sample.fields ?? {})) req = req.field(name, value);
+          for (const f of sample.files) req = req.attach(f.field, f.data, f.name);
+        }
+        else if (sample.form) req = req.type('form').send(sample.form);
         else if (sample.body) req = req.send(sample.body);
         const res = await req;
         const want = expected(route.access, who);

@@ -2,7 +2,7 @@ import type { Sequelize } from 'sequelize';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { backoffMs, claimNextJob, completeJob, enqueueJob, failJob } from '../../jobs/src/queue.ts';
 import { housekeepingKey } from '../../jobs/src/tasks/housekeeping.ts';
-import { tasks } from '../../jobs/src/tasks/index.ts';
+import { housekeeping } from '../../jobs/src/tasks/housekeeping.ts';
 import { NightShiftWorker } from '../../jobs/src/worker.ts';
 import { Job, WorkerHeartbeat } from '../../server/src/models/index.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
@@ -93,7 +93,7 @@ describe('the night-shift worker', () => {
     await sequelize.query("INSERT INTO sessions (sid, expires, data) VALUES ('s-old', '2020-01-01', '{}'), ('s-live', '2099-01-01', '{}')");
     const job = await enqueueJob({ kind: 'housekeeping', idempotencyKey: 'housekeeping:test' });
 
-    const worker = new NightShiftWorker({ sequelize, tasks, pollMs: 50, heartbeatMs: 1_000 });
+    const worker = new NightShiftWorker({ sequelize, tasks: { housekeeping }, pollMs: 50, heartbeatMs: 1_000 });
     expect(await worker.runOnce()).toBe(true);
     const done = await Job.findByPk(job.id);
     expect(done?.status).toBe('done');

@@ -15,7 +15,7 @@ export const navEntries: readonly NavEntry[] = [
   { label: 'Overview', path: '/', available: true },
   { label: 'Review desk', path: '/review', available: false, permission: 'review:write' },
   { label: 'Subjects', path: '/subjects', available: false, permission: 'subjects:write' },
-  { label: 'Intake', path: '/intake', available: false, permission: 'items:import' },
+  { label: 'Intake', path: '/intake', available: true, permission: 'items:import' },
   { label: 'Ledger', path: '/ledger', available: false, permission: 'exports:read' },
   { label: 'People', path: '/people', available: true, permission: 'people:manage' },
   { label: 'Mailbox', path: '/mailbox', available: true, permission: 'mailbox:read', needsMailbox: true },

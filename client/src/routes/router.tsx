@@ -2,6 +2,7 @@ import type { QueryClient } from '@tanstack/react-query';
 import { createBrowserRouter } from 'react-router';
 import { AppLayout, type RouteHandle } from './app-layout';
 import { loadSession, redirectSignedIn, requireSignIn } from './guards';
+import { IntakeRoute } from './intake';
 import { MailboxRoute } from './mailbox';
 import { NotFoundRoute } from './not-found';
 import { OverviewRoute } from './overview';
@@ -49,6 +50,14 @@ export function createRouter(queryClient: QueryClient) {
                   element: (
                     <RequirePermission permission="people:manage" screen="People">
                       <PeopleRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'intake',
+                  element: (
+                    <RequirePermission permission="items:import" screen="Intake">
+                      <IntakeRoute />
                     </RequirePermission>
                   ),
                 },

@@ -5,6 +5,7 @@
  * they return.
  */
 export * from './backbone/embedder.ts';
+export { WorkerEmbedder } from './backbone/worker-embedder.ts';
 export { ensureBackend, wasmBinaryFolder, type BackendName } from './backbone/tfjs-runtime.ts';
 export { readModelArtifacts, fileModelHandler, makeSpatialDimsDynamic } from './backbone/model-files.ts';
 export { toSquareRgb, PREPROCESSING_VERSION, type RgbImage, type PreprocessOptions } from './backbone/preprocess.ts';
@@ -25,3 +26,4 @@ export * from './synthesis/trained.ts';
 export * from './synthesis/refined.ts';
 export * from './synthesis/carried.ts';
 export * from './synthesis/transductive.ts';
+export * from './synthesize.ts';

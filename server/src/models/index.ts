@@ -4,6 +4,7 @@ import { Collection } from './collection.ts';
 import { Embedding } from './embedding.ts';
 import { Example } from './example.ts';
 import { ExportFile } from './export-file.ts';
+import { ImportBatch } from './import-batch.ts';
 import { Item } from './item.ts';
 import { Job } from './job.ts';
 import { Run } from './run.ts';
@@ -15,6 +16,7 @@ import { User } from './user.ts';
 import { WorkerHeartbeat } from './worker-heartbeat.ts';
 
 export { AuditEvent, Collection, Embedding, Example, ExportFile, Item, Job, Run, Subject, SubjectModel, Suggestion, User, UserToken, WorkerHeartbeat };
+export { ImportBatch };
 export { ROLES, type Role } from './user.ts';
 
 let initialised: Sequelize | null = null;
@@ -27,6 +29,7 @@ export function initModels(sequelize: Sequelize): void {
   for (const m of [User, Collection, Subject, Item, Example, Embedding, SubjectModel, Suggestion, Run, Job, WorkerHeartbeat, AuditEvent, ExportFile, UserToken]) {
     m.initModel(sequelize);
   }
+  ImportBatch.initModel(sequelize);
   const fk = (name: string, allowNull = false) => ({ foreignKey: { name, allowNull } });
 
   Collection.hasMany(Subject, { ...fk('collectionId'), as: 'subjects' });
@@ -61,4 +64,5 @@ export function initModels(sequelize: Sequelize): void {
 
   AuditEvent.belongsTo(User, { ...fk('actorId', true), as: 'actor' });
   ExportFile.belongsTo(Collection, { ...fk('collectionId', true), as: 'collection' });
+  ImportBatch.belongsTo(Collection, { ...fk('collectionId'), as: 'collection' });
 }

@@ -10,6 +10,10 @@ export class Item extends Model<InferAttributes<Item>, InferCreationAttributes<I
   declare identifier: string;
   declare fileName: string;
   declare fileKey: string | null;
+  /** storage key of the thumbnail (about 320 px on its long side), made at intake */
+  declare thumbKey: CreationOptional<string | null>;
+  /** storage key of the review-size image (about 1600 px on its long side), made at intake */
+  declare viewKey: CreationOptional<string | null>;
   declare mimeType: string | null;
   declare width: number | null;
   declare height: number | null;
@@ -39,6 +43,8 @@ export class Item extends Model<InferAttributes<Item>, InferCreationAttributes<I
         identifier: { type: DataTypes.STRING(120), allowNull: false },
         fileName: { type: DataTypes.STRING(255), allowNull: false },
         fileKey: { type: DataTypes.CHAR(64), allowNull: true },
+        thumbKey: { type: DataTypes.CHAR(64), allowNull: true },
+        viewKey: { type: DataTypes.CHAR(64), allowNull: true },
         mimeType: { type: DataTypes.STRING(60), allowNull: true },
         width: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         height: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },

@@ -10,7 +10,9 @@ export type AuditAction =
   | 'person-reactivated'
   | 'invitation-sent'
   | 'password-reset-requested'
-  | 'password-set';
+  | 'password-set'
+  | 'item-ingested'
+  | 'metadata-imported';
 
 export interface AuditInput {
   action: AuditAction;

@@ -6,8 +6,9 @@
  * live in the prepared (centred, normalised) space, so scoring the target collection's features prepared
  * with the target's own means is already the carry.
  */
+import { normalise } from '../features.ts';
 import type { LinearModel } from '../model.ts';
-import { trainRegressor, type RegressorOptions, type WeightRegressor } from './regressor.ts';
+import { trainRegressor, type RegressorOptions, type WeightMap, type WeightRegressor } from './regressor.ts';
 
 export interface SharedSubject {
   /** the subject model's weights on the source collection (several versions may be given) */
@@ -28,6 +29,6 @@ export async function trainCarryMap(shared: readonly SharedSubject[], options: R
   );
 }
 
-export function carriedModel(source: LinearModel, map?: WeightRegressor | null): LinearModel {
-  return { weights: map ? map.apply(source.weights) : Float32Array.from(source.weights), bias: 0 };
+export function carriedModel(source: LinearModel, map?: WeightMap | null): LinearModel {
+  return { weights: map ? normalise(map.apply(normalise(source.weights))) : Float32Array.from(source.weights), bias: 0 };
 }

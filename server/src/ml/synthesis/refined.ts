@@ -9,7 +9,7 @@ import { addScaled, dot, meanOf, normalise } from '../features.ts';
 import { principalDirections, projectOnto } from '../linalg.ts';
 import type { LinearModel } from '../model.ts';
 import { prototypeWeights } from './prototype.ts';
-import type { WeightRegressor } from './regressor.ts';
+import type { WeightMap } from './regressor.ts';
 
 export interface RefinedInput {
   /** prepared features of the narrower subject's examples */
@@ -20,15 +20,15 @@ export interface RefinedInput {
   siblings: readonly Float32Array[];
   /** the broader subject's model: without siblings, its direction is removed instead */
   broader?: LinearModel;
-  regressor?: WeightRegressor;
+  regressor?: WeightMap;
   /** principal directions kept (default 16) */
   components?: number;
 }
 
-/** The narrower subject's weights before the sibling and subspace steps: T(prototype) or the prototype. */
-export function narrowerBaseWeights(examples: readonly Float32Array[], regressor?: WeightRegressor): Float32Array {
+/** The narrower subject's weights before the sibling and subspace steps: normalise(T(prototype)) or the prototype. */
+export function narrowerBaseWeights(examples: readonly Float32Array[], regressor?: WeightMap): Float32Array {
   const p = prototypeWeights(examples);
-  return regressor ? regressor.apply(p) : p;
+  return regressor ? normalise(regressor.apply(p)) : p;
 }
 
 export function refinedModel(input: RefinedInput): LinearModel {

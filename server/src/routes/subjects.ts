@@ -1,0 +1,175 @@
+import multer from 'multer';
+import sharp, { type Metadata } from 'sharp';
+import { z } from 'zod';
+import { needs } from '../auth/permissions.ts';
+import type { AppContext } from '../context.ts';
+import { HttpProblem } from '../http/problem.ts';
+import { currentUser, type GuardedRouter } from '../http/routes.ts';
+import { parse } from '../http/validate.ts';
+import { Collection, Embedding, Example, Subject, SubjectModel } from '../models/index.ts';
+import { EXAMPLE_MEDIA } from '../models/example.ts';
+import { embedStoredFile, processEmbedder } from '../services/features.ts';
+import { Storage } from '../services/storage.ts';
+import { activeModel, judgedItems, modelHistory, rankedPreview, summarise, synthesizeSubjectModel } from '../services/subject-models.ts';
+
+const idParam = z.object({ id: z.coerce.number().int().positive() });
+const EXAMPLE_FORMATS = new Set(['jpeg', 'png', 'webp', 'tiff']);
+const MAX_EXAMPLE_BYTES = 25 * 1024 * 1024;
+const MAX_EXAMPLE_PIXELS = 50_000_000;
+
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_EXAMPLE_BYTES, files: 20 } });
+
+/** Reads the real format from the bytes (not the name): a drawing saved as PNG, a photo as JPEG, … */
+async function checkExampleImage(name: string, bytes: Buffer): Promise<{ format: string; width: number; height: number }> {
+  let meta: Metadata;
+  try {
+    meta = await sharp(bytes, { limitInputPixels: MAX_EXAMPLE_PIXELS, failOn: 'error' }).metadata();
+  } catch (err) {
+    throw new HttpProblem(400, 'Not a usable image', `${name}: ${(err as Error).message.includes('pixel limit') ? `larger than ${MAX_EXAMPLE_PIXELS / 1e6} megapixels` : 'not an image Cartouche can read'}.`);
+  }
+  if (!meta.format || !EXAMPLE_FORMATS.has(meta.format)) throw new HttpProblem(400, 'Unsupported image format', `${name}: ${meta.format ?? 'unknown'} files cannot be examples; use JPEG, PNG, WebP or TIFF.`);
+  return { format: meta.format, width: meta.width ?? 0, height: meta.height ?? 0 };
+}
+
+function exampleView(e: Example) {
+  return { id: e.id, subjectId: e.subjectId, medium: e.medium, origin: e.origin, itemId: e.itemId, createdAt: e.createdAt.toISOString(), imageUrl: `/api/examples/${e.id}/image` };
+}
+
+export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void {
+  const storage = new Storage(ctx.config.storageDir);
+  const read = needs('collections:read');
+  const write = needs('subjects:write');
+
+  const subjectOr404 = async (id: number) => {
+    const s = await Subject.findByPk(id);
+    if (!s) throw new HttpProblem(404, 'Not found', 'No such subject.');
+    return s;
+  };
+
+  api.route('get', '/collections/:id/subjects', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    if (!(await Collection.findByPk(id))) throw new HttpProblem(404, 'Not found', 'No such collection.');
+    const subjects = await Subject.findAll({ where: { collectionId: id }, order: [['prefLabel', 'ASC']] });
+    const examples = await Example.count({ where: { subjectId: subjects.map((s) => s.id) }, group: ['subject_id'] as never });
+    const exampleCount = new Map((examples as unknown as Array<{ subject_id?: number; subjectId?: number; count: number }>).map((r) => [Number(r.subject_id ?? r.subjectId), Number(r.count)]));
+    const models = await SubjectModel.findAll({ where: { subjectId: subjects.map((s) => s.id), active: true }, attributes: { exclude: ['weights'] } });
+    const modelOf = new Map(models.map((m) => [m.subjectId, summarise(m)]));
+    res.json({
+      subjects: subjects.map((s) => ({
+        id: s.id,
+        prefLabel: s.prefLabel,
+        kind: s.kind,
+        broaderId: s.broaderId,
+        status: s.status,
+        notation: s.notation,
+        altTextPhrase: s.altTextPhrase,
+        examples: exampleCount.get(s.id) ?? 0,
+        model: modelOf.get(s.id) ?? null,
+      })),
+    });
+  });
+
+  api.route('get', '/subjects/:id', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const s = await subjectOr404(id);
+    const examples = await Example.findAll({ where: { subjectId: id }, order: [['id', 'ASC']] });
+    const embedder = await processEmbedder();
+    const model = await activeModel(id, embedder.id);
+    const judged = await judgedItems(id);
+    res.json({
+      subject: {
+        id: s.id,
+        collectionId: s.collectionId,
+        prefLabel: s.prefLabel,
+        altLabels: s.altLabels,
+        kind: s.kind,
+        broaderId: s.broaderId,
+        notation: s.notation,
+        scopeNote: s.scopeNote,
+        altTextPhrase: s.altTextPhrase,
+        status: s.status,
+        version: s.version,
+      },
+      examples: examples.map(exampleView),
+      model: model ? summarise(model) : null,
+      judgements: { confirmed: judged.confirmed.length, rejected: judged.rejected.length },
+    });
+  });
+
+  api.route('post', '/subjects/:id/examples', write, upload.array('files', 20), async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const { medium } = parse(z.object({ medium: z.enum(EXAMPLE_MEDIA) }), req.body, 'body');
+    await subjectOr404(id);
+    const files = (req.files as Express.Multer.File[] | undefined) ?? [];
+    if (files.length === 0) throw new HttpProblem(400, 'No files', 'Send one or more image files in the "files" field.');
+    // every file is checked before any is stored: a batch of examples lands whole or not at all
+    for (const f of files) await checkExampleImage(f.originalname, f.buffer);
+    const embedder = await processEmbedder();
+    const actor = currentUser(req);
+    const created: Example[] = [];
+    for (const f of files) {
+      const fileKey = await storage.put(f.buffer);
+      const example = await Example.create({ subjectId: id, medium, origin: medium === 'sketch' && f.originalname.startsWith('sketch-pad') ? 'drawn' : 'uploaded', fileKey, itemId: null, createdBy: actor.id });
+      try {
+        await embedStoredFile(embedder, storage, { type: 'example', id: example.id }, fileKey);
+      } catch (err) {
+        await example.destroy();
+        throw new HttpProblem(422, 'Could not read the example', `${f.originalname}: ${(err as Error).message}`);
+      }
+      created.push(example);
+    }
+    res.status(201).json({ examples: created.map(exampleView), embedderId: embedder.id });
+  });
+
+  api.route('delete', '/examples/:id', write, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const example = await Example.findByPk(id);
+    if (!example) throw new HttpProblem(404, 'Not found', 'No such example.');
+    await ctx.sequelize.transaction(async (transaction) => {
+      await Embedding.destroy({ where: { ownerType: 'example', ownerId: id }, transaction });
+      await example.destroy({ transaction });
+    });
+    res.status(204).end();
+  });
+
+  api.route('get', '/examples/:id/image', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const example = await Example.findByPk(id);
+    if (!example) throw new HttpProblem(404, 'Not found', 'No such example.');
+    const path = storage.pathOf(example.fileKey);
+    const { format } = await sharp(path).metadata();
+    res.type(`image/${format ?? 'png'}`);
+    // the storage folder may sit under a dot-folder (.data): allow it explicitly
+    res.set('Cache-Control', 'private, max-age=31536000, immutable').sendFile(path, { dotfiles: 'allow', headers: { 'Content-Type': res.get('Content-Type') } });
+  });
+
+  api.route('get', '/subjects/:id/preview', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const q = parse(
+      z.object({ topN: z.coerce.number().int().min(1).max(500).default(50), minZ: z.coerce.number().min(-10).max(10).default(2) }),
+      req.query,
+      'query',
+    );
+    res.json(await rankedPreview(ctx.sequelize, await processEmbedder(), id, q));
+  });
+
+  api.route('post', '/subjects/:id/models', write, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const body = parse(
+      z.discriminatedUnion('mode', [
+        z.object({ mode: z.literal('from-examples') }),
+        z.object({ mode: z.literal('narrower'), broaderSubjectId: z.number().int().positive().optional() }),
+        z.object({ mode: z.literal('carried'), sourceSubjectId: z.number().int().positive() }),
+      ]),
+      req.body,
+      'body',
+    );
+    const model = await synthesizeSubjectModel(ctx.sequelize, await processEmbedder(), id, body, currentUser(req).id);
+    res.status(201).json({ model });
+  });
+
+  api.route('get', '/subjects/:id/models', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    res.json({ models: await modelHistory(id) });
+  });
+}

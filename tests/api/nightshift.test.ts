@@ -1,0 +1,124 @@
+import { mkdtempSync, readdirSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { Sequelize } from 'sequelize';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { EmbeddingPool } from '../../jobs/src/embed-pool.ts';
+import { createTasks } from '../../jobs/src/tasks/index.ts';
+import { NightShiftWorker } from '../../jobs/src/worker.ts';
+import { createApp } from '../../server/src/app.ts';
+import type { AppConfig } from '../../server/src/config.ts';
+import { Embedding, Example, Item, Run, Suggestion } from '../../server/src/models/index.ts';
+import { embedStoredFile, processEmbedder } from '../../server/src/services/features.ts';
+import { startRun, type RunReport } from '../../server/src/services/runs.ts';
+import { Storage } from '../../server/src/services/storage.ts';
+import { synthesizeSubjectModel } from '../../server/src/services/subject-models.ts';
+import { buildDemoScenario, renderItemImage } from '../../scripts/demo/index.ts';
+import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
+import { makeCollection, makeSubject } from '../helpers/fixtures.ts';
+import { startTestSmtp } from '../helpers/mail.ts';
+import { makePerson, signIn } from '../helpers/people.ts';
+
+// Scans are drawn by the demo renderer: these tests check the pipeline's behaviour, not its accuracy.
+let sequelize: Sequelize;
+let config: AppConfig;
+let pool: EmbeddingPool;
+let smtp: Awaited<ReturnType<typeof startTestSmtp>>;
+const plates = buildDemoScenario().collections[0]!;
+
+beforeAll(async () => {
+  ({ sequelize, config } = await openTestDatabase());
+  smtp = await startTestSmtp();
+  config = { ...config, smtp: { ...config.smtp, port: smtp.port }, mailDir: smtp.mailDir };
+  pool = await EmbeddingPool.start(1);
+}, 120_000);
+afterAll(async () => {
+  pool?.dispose();
+  await smtp?.close();
+  await sequelize?.close();
+});
+beforeEach(async () => resetDatabase(sequelize));
+
+async function dropFolderWith(n: number): Promise<string> {
+  const dir = mkdtempSync(join(tmpdir(), 'cartouche-drop-'));
+  for (const item of plates.items.slice(0, n)) writeFileSync(join(dir, item.fileName), (await renderItemImage(item, plates.medium, { width: 400 })).data);
+  writeFileSync(join(dir, 'notes.jpg'), 'these are my notes, not a scan');
+  return dir;
+}
+
+async function lighthouseModel(collectionId: number): Promise<number> {
+  const subject = await makeSubject((await import('../../server/src/models/index.ts')).Collection.build({ id: collectionId }) as never, { prefLabel: 'lighthouse' });
+  const storage = new Storage(config.storageDir);
+  const embedder = await processEmbedder();
+  for (const d of plates.items.filter((i) => i.truth.includes('lighthouse')).slice(20, 22)) {
+    const key = await storage.put((await renderItemImage(d, plates.medium, { width: 400 })).data);
+    const ex = await Example.create({ subjectId: subject.id, medium: 'illustration', origin: 'uploaded', fileKey: key, itemId: null, createdBy: null });
+    await embedStoredFile(embedder, storage, { type: 'example', id: ex.id }, key);
+  }
+  await synthesizeSubjectModel(sequelize, embedder, subject.id, { mode: 'from-examples' }, null);
+  return subject.id;
+}
+
+describe('a night-shift run', () => {
+  it('ingests the drop folder, embeds, suggests, mails the digest, and a second run changes nothing', async () => {
+    const drop = await dropFolderWith(6);
+    const c = await makeCollection();
+    await c.update({ dropFolder: drop });
+    const subjectId = await lighthouseModel(c.id);
+    const editor = await makePerson('editor');
+    const worker = new NightShiftWorker({ sequelize, tasks: createTasks({ config, pool: async () => pool }) });
+
+    const run = await startRun(sequelize, c.id, 'manual', null);
+    await expect(startRun(sequelize, c.id, 'manual', null)).rejects.toMatchObject({ status: 409, title: 'A run is already under way' });
+    expect(await worker.runOnce()).toBe(true);
+    const done = await Run.findByPk(run.id);
+    expect(done?.status).toBe('succeeded');
+    expect(done?.counts).toMatchObject({ ingested: 6, rejected: 1, duplicates: 0, embedded: 6 });
+    const report = done!.report as unknown as RunReport;
+    expect(report.rejected).toEqual([{ fileName: 'notes.jpg', reason: expect.stringMatching(/not .*(image|JPEG|PNG)/i) }]);
+    expect(Object.values(report.stages).map((s) => s.state)).toEqual(['done', 'done', 'done', 'done', 'done']);
+    // processed files are moved aside, never deleted
+    expect(readdirSync(drop).sort()).toEqual(['processed', 'rejected']);
+    expect(readdirSync(join(drop, 'processed'))).toHaveLength(6);
+    expect(readdirSync(join(drop, 'rejected')).sort()).toEqual(['notes.jpg', 'notes.jpg.reason.txt']);
+    expect(await Embedding.count({ where: { ownerType: 'item' } })).toBe(6);
+    const proposed = await Suggestion.findAll({ where: { subjectId, state: 'proposed' } });
+    expect(proposed.length).toBe((done!.counts as { suggested: number }).suggested);
+    for (const s of proposed) expect(s.runId).toBe(run.id);
+    if (proposed.length) expect(await Item.count({ where: { state: 'suggested' } })).toBe(proposed.length);
+
+    const [mail] = await smtp.messagesTo(editor.email);
+    expect(mail?.subject).toMatch(new RegExp(`^${c.name}: ${proposed.length} item\\(s\\) waiting for review$`));
+    expect(mail!.text).toContain('New scans: 6 (duplicates skipped: 0, refused: 1)');
+    expect(mail!.text).toContain('Scans embedded: 6');
+
+    // a second run: nothing new to ingest or embed, the same proposals, no duplicates
+    const again = await startRun(sequelize, c.id, 'manual', null);
+    await worker.runOnce();
+    const second = await Run.findByPk(again.id);
+    expect(second?.status).toBe('succeeded');
+    expect(second?.counts).toMatchObject({ ingested: 0, embedded: 0 });
+    const after = await Suggestion.findAll({ where: { subjectId, state: 'proposed' }, order: [['itemId', 'ASC']] });
+    expect(after.map((s) => s.itemId)).toEqual(proposed.map((s) => s.itemId).sort((a, b) => a - b));
+    expect(await Item.count()).toBe(6);
+  });
+
+  it('can be started, listed and cancelled through the API by an archivist, not by an editor', async () => {
+    const app = createApp({ config, sequelize });
+    const archivist = await signIn(app, 'archivist');
+    const editor = await signIn(app, 'editor');
+    const c = await makeCollection();
+    const started = await archivist.agent.post(`/api/collections/${c.id}/runs`).set('x-csrf-token', archivist.csrf).expect(202);
+    expect(started.body.run).toMatchObject({ status: 'queued', trigger: 'manual', requestedBy: archivist.user.id });
+    await archivist.agent.post(`/api/collections/${c.id}/runs`).set('x-csrf-token', archivist.csrf).expect(409);
+    await editor.agent.post(`/api/runs/${started.body.run.id}/cancel`).set('x-csrf-token', editor.csrf).expect(403);
+    const list = await editor.agent.get(`/api/collections/${c.id}/runs`).expect(200);
+    expect(list.body.runs.map((r: { id: number }) => r.id)).toEqual([started.body.run.id]);
+    const cancelled = await archivist.agent.post(`/api/runs/${started.body.run.id}/cancel`).set('x-csrf-token', archivist.csrf).expect(200);
+    expect(cancelled.body.run.status).toBe('cancelled');
+    // a cancelled run never starts
+    const worker = new NightShiftWorker({ sequelize, tasks: createTasks({ config, pool: async () => pool }) });
+    await worker.runOnce();
+    expect((await Run.findByPk(started.body.run.id))?.status).toBe('cancelled');
+  });
+});
