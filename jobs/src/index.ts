@@ -16,7 +16,14 @@ const tasks = createTasks({
   // started on the first run that needs it, then kept: starting the threads and the backbone takes a few seconds
   pool: () => (pool ??= EmbeddingPool.start()),
 });
-const worker = new NightShiftWorker({ sequelize, tasks });
+const envMs = (name: string) => (process.env[name] ? Number(process.env[name]) : undefined);
+const worker = new NightShiftWorker({
+  sequelize,
+  tasks,
+  leaseMs: envMs('CARTOUCHE_JOB_LEASE_MS'),
+  heartbeatMs: envMs('CARTOUCHE_WORKER_HEARTBEAT_MS'),
+  pollMs: envMs('CARTOUCHE_WORKER_POLL_MS'),
+});
 await worker.start();
 const schedules = startSchedules();
 

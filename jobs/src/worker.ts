@@ -26,7 +26,8 @@ export class NightShiftWorker {
   private readonly opts: Required<WorkerOptions>;
 
   constructor(opts: WorkerOptions) {
-    this.opts = { heartbeatMs: 15_000, pollMs: 5_000, leaseMs: 120_000, ...opts };
+    const defined = Object.fromEntries(Object.entries(opts).filter(([, v]) => v !== undefined)) as WorkerOptions;
+    this.opts = { heartbeatMs: 15_000, pollMs: 5_000, leaseMs: 120_000, ...defined };
   }
 
   async start(): Promise<void> {

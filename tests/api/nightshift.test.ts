@@ -122,3 +122,24 @@ describe('a night-shift run', () => {
     expect((await Run.findByPk(started.body.run.id))?.status).toBe('cancelled');
   });
 });
+
+describe('night-shift settings of a collection', () => {
+  it('accepts a valid schedule and refuses a bad cron expression, time zone or relative drop folder, naming each', async () => {
+    const app = createApp({ config, sequelize });
+    const archivist = await signIn(app, 'archivist');
+    const c = await makeCollection();
+    const ok = await archivist.agent
+      .put(`/api/collections/${c.id}/schedule`)
+      .set('x-csrf-token', archivist.csrf)
+      .send({ scheduleCron: '0 3 * * *', scheduleTimezone: 'Europe/Lisbon', scheduleEnabled: true, dropFolder: '/srv/scans/plates' })
+      .expect(200);
+    expect(ok.body.schedule).toEqual({ scheduleCron: '0 3 * * *', scheduleTimezone: 'Europe/Lisbon', scheduleEnabled: true, dropFolder: '/srv/scans/plates' });
+    const bad = await archivist.agent
+      .put(`/api/collections/${c.id}/schedule`)
+      .set('x-csrf-token', archivist.csrf)
+      .send({ scheduleCron: 'every night', scheduleTimezone: 'Harbour/Kestrelmouth', scheduleEnabled: true, dropFolder: 'scans' })
+      .expect(400);
+    expect(bad.body.errors.map((e: { path: string }) => e.path).sort()).toEqual(['dropFolder', 'scheduleCron', 'scheduleTimezone']);
+    expect((await archivist.agent.get(`/api/collections/${c.id}/schedule`).expect(200)).body.schedule.scheduleCron).toBe('0 3 * * *');
+  });
+});

@@ -94,6 +94,11 @@ const samples: Record<string, () => Promise<Sample>> = {
   'post /api/auth/saml/acs': async () => ({ form: { SAMLResponse: Buffer.from('<not-saml/>').toString('base64') } }),
   'get /api/auth/saml/metadata': async () => ({}),
   'get /api/collections': async () => ({}),
+  'get /api/collections/:id/schedule': async () => ({ path: `/api/collections/${(await makeCollection()).id}/schedule` }),
+  'put /api/collections/:id/schedule': async () => ({
+    path: `/api/collections/${(await makeCollection()).id}/schedule`,
+    body: { scheduleCron: '30 1 * * 1-5', scheduleTimezone: 'Europe/London', scheduleEnabled: true, dropFolder: '' },
+  }),
   'get /api/collections/:id/runs': async () => ({ path: `/api/collections/${(await makeCollection()).id}/runs` }),
   'post /api/collections/:id/runs': async () => ({ path: `/api/collections/${(await makeCollection()).id}/runs` }),
   'get /api/runs/:id': async () => ({ path: `/api/runs/${(await startRun(sequelize, (await makeCollection()).id, 'manual', null)).id}` }),
