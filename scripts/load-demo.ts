@@ -6,7 +6,8 @@ import argon2 from 'argon2';
 import type { Sequelize } from 'sequelize';
 import { loadConfig } from '../server/src/config.ts';
 import { openDatabase } from '../server/src/db/index.ts';
-import { Collection, Item, Subject, Suggestion, User } from '../server/src/models/index.ts';
+import { Collection, Example, Item, Subject, Suggestion, User } from '../server/src/models/index.ts';
+import { startRun } from '../server/src/services/runs.ts';
 import { Storage } from '../server/src/services/storage.ts';
 import { buildDemoScenario, renderItemImage, type DemoScenario } from './demo/index.ts';
 
@@ -86,6 +87,7 @@ export async function loadDemoScenario(
         { transaction },
       );
       const subjects = new Map<string, Subject>();
+      const exampleMedium = c.medium === 'photograph' ? 'photo' : 'illustration';
       // parents before children: repeat passes until every broader subject exists
       let pending = [...c.subjects];
       while (pending.length) {
@@ -167,8 +169,20 @@ export async function loadDemoScenario(
           }
         }
       }
+      // the archivists' starting point: up to three items per subject promoted to examples of it
+      const itemIds = new Map((await Item.findAll({ where: { collectionId: collection.id }, attributes: ['id', 'identifier', 'fileKey'], transaction })).map((i) => [i.identifier, i]));
+      for (const [key, subject] of subjects) {
+        if (subject.status !== 'active') continue;
+        const chosen = c.items.filter((it) => it.truth.includes(key)).sort((a, b) => Number(Boolean(b.reviewed)) - Number(Boolean(a.reviewed))).slice(0, 3);
+        for (const it of chosen) {
+          const item = itemIds.get(it.identifier)!;
+          await Example.create({ subjectId: subject.id, medium: exampleMedium, origin: 'promoted', fileKey: item.fileKey!, itemId: item.id, createdBy: null }, { transaction });
+        }
+      }
     }
   });
+  // the first night-shift run of each collection: the worker reads the scans, builds the subject models and suggests
+  for (const c of await Collection.findAll()) await startRun(sequelize, c.id, 'manual', null);
   return { loaded: true, people: scenario.people.length, collections: collections.length, subjects: subjectCount, items: itemCount };
 }
 

@@ -1,6 +1,6 @@
 import { cpus } from 'node:os';
 import { WorkerEmbedder } from '../../server/src/ml/backbone/worker-embedder.ts';
-import type { Embedder, EmbedderConfig } from '../../server/src/ml/index.ts';
+import { mirrorAverage, type Embedder, type EmbedderConfig } from '../../server/src/ml/index.ts';
 
 /**
  * A pool of embedding worker threads. TF.js's wasm backend runs single-threaded inside Node, so each thread
@@ -46,6 +46,12 @@ export class EmbeddingPool {
     };
     await Promise.all(this.workers.map(runWorker));
     return embedded;
+  }
+
+  /** Features of examples: each image and its mirror image, averaged (mirrored copies are free and help slightly). */
+  async embedExamples(images: readonly Buffer[]): Promise<Float32Array[]> {
+    if (images.length === 0) return [];
+    return (await this.workers[0]!.embedWithMirror(images)).map(mirrorAverage);
   }
 
   dispose(): void {

@@ -179,8 +179,23 @@ async function embedStage(sequelize: Sequelize, storage: Storage, deps: NightShi
       ORDER BY i.id`,
     { type: QueryTypes.SELECT, replacements: { collectionId: collection.id, embedderId: pool.embedder.id } },
   );
-  await s.begin(todo.length);
+  // examples (drawn, uploaded or promoted) that have no feature from this embedder yet
+  const examples = await sequelize.query<{ id: number; file_key: string }>(
+    `SELECT x.id, x.file_key FROM examples x JOIN subjects s ON s.id = x.subject_id
+      WHERE s.collection_id = :collectionId
+        AND NOT EXISTS (SELECT 1 FROM embeddings e WHERE e.owner_type = 'example' AND e.owner_id = x.id AND e.embedder_id = :embedderId)
+      ORDER BY x.id`,
+    { type: QueryTypes.SELECT, replacements: { collectionId: collection.id, embedderId: pool.embedder.id } },
+  );
+  await s.begin(todo.length + examples.length);
   let done = 0;
+  for (let i = 0; i < examples.length; i += 8) {
+    const slice = examples.slice(i, i + 8);
+    const features = await pool.embedExamples(await Promise.all(slice.map((x) => readFile(storage.pathOf(x.file_key)))));
+    for (const [j, x] of slice.entries()) await storeEmbedding({ type: 'example', id: x.id }, pool.embedder.id, features[j]!);
+    done += slice.length;
+    await s.progress(done);
+  }
   await pool.embedAll(
     todo,
     // the review-size derivative is already oriented and small: decoding it is far cheaper than the scan

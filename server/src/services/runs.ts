@@ -2,7 +2,8 @@ import { Op, type Sequelize } from 'sequelize';
 import { HttpProblem } from '../http/problem.ts';
 import { Collection, Job, Run } from '../models/index.ts';
 
-export const STAGES = ['ingest', 'embed', 'suggest', 'retrain', 'digest'] as const;
+// tonight's models learn from today's decisions before they suggest
+export const STAGES = ['ingest', 'embed', 'retrain', 'suggest', 'digest'] as const;
 export type Stage = (typeof STAGES)[number];
 
 export interface StageReport {
