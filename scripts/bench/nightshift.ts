@@ -13,7 +13,7 @@ import { loadConfig } from '../../server/src/config.ts';
 import { openDatabase } from '../../server/src/db/index.ts';
 import { Collection, Example, Run, Subject } from '../../server/src/models/index.ts';
 import { embedStoredFile } from '../../server/src/services/features.ts';
-import { startRun, STAGES, type RunReport } from '../../server/src/services/runs.ts';
+import { startRun, type STAGES, type RunReport } from '../../server/src/services/runs.ts';
 import { Storage } from '../../server/src/services/storage.ts';
 import { synthesizeSubjectModel } from '../../server/src/services/subject-models.ts';
 import { buildDemoScenario, renderItemImage } from '../demo/index.ts';

@@ -8,7 +8,7 @@ import { createTasks } from '../../jobs/src/tasks/index.ts';
 import { NightShiftWorker } from '../../jobs/src/worker.ts';
 import { createApp } from '../../server/src/app.ts';
 import type { AppConfig } from '../../server/src/config.ts';
-import { Embedding, Example, Item, Run, Suggestion } from '../../server/src/models/index.ts';
+import { Embedding, Example, Item, Run, Suggestion, type Collection } from '../../server/src/models/index.ts';
 import { embedStoredFile, processEmbedder } from '../../server/src/services/features.ts';
 import { startRun, type RunReport } from '../../server/src/services/runs.ts';
 import { Storage } from '../../server/src/services/storage.ts';
@@ -46,8 +46,8 @@ async function dropFolderWith(n: number): Promise<string> {
   return dir;
 }
 
-async function lighthouseModel(collectionId: number): Promise<number> {
-  const subject = await makeSubject((await import('../../server/src/models/index.ts')).Collection.build({ id: collectionId }) as never, { prefLabel: 'lighthouse' });
+async function lighthouseModel(collection: Collection): Promise<number> {
+  const subject = await makeSubject(collection, { prefLabel: 'lighthouse' });
   const storage = new Storage(config.storageDir);
   const embedder = await processEmbedder();
   for (const d of plates.items.filter((i) => i.truth.includes('lighthouse')).slice(20, 22)) {
@@ -64,7 +64,7 @@ describe('a night-shift run', () => {
     const drop = await dropFolderWith(6);
     const c = await makeCollection();
     await c.update({ dropFolder: drop });
-    const subjectId = await lighthouseModel(c.id);
+    const subjectId = await lighthouseModel(c);
     const editor = await makePerson('editor');
     const worker = new NightShiftWorker({ sequelize, tasks: createTasks({ config, pool: async () => pool }) });
 

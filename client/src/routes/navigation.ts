@@ -16,6 +16,7 @@ export const navEntries: readonly NavEntry[] = [
   { label: 'Review desk', path: '/review', available: false, permission: 'review:write' },
   { label: 'Subjects', path: '/subjects', available: false, permission: 'subjects:write' },
   { label: 'Intake', path: '/intake', available: true, permission: 'items:import' },
+  { label: 'Night shift', path: '/night-shift', available: true, permission: 'collections:read' },
   { label: 'Ledger', path: '/ledger', available: false, permission: 'exports:read' },
   { label: 'People', path: '/people', available: true, permission: 'people:manage' },
   { label: 'Mailbox', path: '/mailbox', available: true, permission: 'mailbox:read', needsMailbox: true },

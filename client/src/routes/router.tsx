@@ -4,6 +4,7 @@ import { AppLayout, type RouteHandle } from './app-layout';
 import { loadSession, redirectSignedIn, requireSignIn } from './guards';
 import { IntakeRoute } from './intake';
 import { MailboxRoute } from './mailbox';
+import { NightShiftRoute } from './night-shift';
 import { NotFoundRoute } from './not-found';
 import { OverviewRoute } from './overview';
 import { PeopleRoute } from './people';
@@ -58,6 +59,14 @@ export function createRouter(queryClient: QueryClient) {
                   element: (
                     <RequirePermission permission="items:import" screen="Intake">
                       <IntakeRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'night-shift',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Night shift">
+                      <NightShiftRoute />
                     </RequirePermission>
                   ),
                 },
