@@ -1,5 +1,4 @@
 import { spawn, type ChildProcess } from 'node:child_process';
-import { join } from 'node:path';
 import sharp from 'sharp';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -28,7 +27,8 @@ afterAll(async () => {
 
 /** A real worker process (the one `npm start` runs), with a short lease so a dead worker's job is taken over quickly. */
 function startWorker(): ChildProcess {
-  const child = spawn(join(projectRoot, 'node_modules', '.bin', 'tsx'), ['jobs/src/index.ts'], {
+  // node itself with tsx's loader: one process, so SIGKILL really kills the worker (the tsx launcher would leave its child running)
+  const child = spawn(process.execPath, ['--import', 'tsx', 'jobs/src/index.ts'], {
     cwd: projectRoot,
     env: { ...process.env, NODE_ENV: 'test', CARTOUCHE_DB_NAME: config.db.name, CARTOUCHE_STORAGE_DIR: config.storageDir, CARTOUCHE_EMBED_THREADS: '1', CARTOUCHE_JOB_LEASE_MS: '4000', CARTOUCHE_WORKER_HEARTBEAT_MS: '1000', CARTOUCHE_WORKER_POLL_MS: '200', CARTOUCHE_LOG_LEVEL: 'silent' },
     stdio: 'ignore',
@@ -73,6 +73,9 @@ describe('the night shift survives a killed worker', () => {
     await new Promise((r) => first.once('exit', r));
     const partial = await Embedding.count({ where: { ownerType: 'item' } });
     expect(partial).toBeLessThan(N);
+    // the killed worker is gone: nothing moves until another worker comes
+    await new Promise((r) => setTimeout(r, 2500));
+    expect(await Embedding.count({ where: { ownerType: 'item' } })).toBe(partial);
     expect((await Run.findByPk(run.id))?.status).toBe('running');
 
     startWorker();
