@@ -129,9 +129,11 @@ export function registerAuthRoutes(api: GuardedRouter, ctx: AppContext, passport
     express.urlencoded({ extended: false, limit: '512kb' }),
     (req: Request, res: Response, next: NextFunction) => {
       passport.authenticate('saml', { session: false }, (err: unknown, user: User | false) => {
+        // the failure is recorded before the browser is sent on, so the record never trails the answer
         const fail = (code: string, reason: string) => {
-          audit({ action: 'sign-in-failed', detail: { method: 'saml', reason }, ip: req.ip ?? null }).catch(next);
-          res.redirect(303, `/sign-in?failure=${code}`);
+          audit({ action: 'sign-in-failed', detail: { method: 'saml', reason }, ip: req.ip ?? null })
+            .then(() => res.redirect(303, `/sign-in?failure=${code}`))
+            .catch(next);
         };
         if (err instanceof SamlRejection) return fail(err.code, err.message);
         if (err || !user) return fail('saml-invalid', err instanceof Error ? err.message : 'no user');
