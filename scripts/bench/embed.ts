@@ -17,10 +17,13 @@ import { benchRoot, listImages } from './dataset.ts';
 
 const { values } = parseArgs({ options: { images: { type: 'string', default: '40' }, workers: { type: 'string', default: '2' } } });
 const N = Number(values.images);
+sharp.cache(false); // libvips' operation cache would hold the generated scans and blur the embedder's memory
 const WORKERS = Number(values.workers);
 
-const mb = (kb: number) => `${(kb / 1024).toFixed(0)} MB`;
-const peak = () => process.resourceUsage().maxRSS; // kB, whole process (worker threads included)
+const mb = (bytes: number) => `${(bytes / 2 ** 20).toFixed(0)} MB`;
+/** resident memory of the whole process (worker threads included), sampled between images */
+let phasePeak = 0;
+const sampleRss = () => (phasePeak = Math.max(phasePeak, process.memoryUsage().rss));
 
 function svg(w: number, h: number, seed: number): Buffer {
   const shapes = Array.from({ length: 12 }, (_, i) => {
@@ -43,13 +46,14 @@ async function makeSet(kind: 'small JPEG 224 px' | 'drawing PNG 800 px, alpha' |
 
 const rows: string[][] = [];
 function row(what: string, ms: number, images: number, note = ''): void {
-  rows.push([what, (ms / images).toFixed(1), String(images), mb(peak()), note]);
+  rows.push([what, (ms / images).toFixed(1), String(images), mb(phasePeak), note]);
+  phasePeak = 0;
 }
 
 const t0 = performance.now();
 const embedder = await createEmbedder();
 const loadMs = performance.now() - t0;
-console.log(`bench:embed — embedder ${embedder.id} (${embedder.dimension} floats), loaded in ${loadMs.toFixed(0)} ms, peak RSS ${mb(peak())}`);
+console.log(`bench:embed — embedder ${embedder.id} (${embedder.dimension} floats), loaded in ${loadMs.toFixed(0)} ms, RSS after loading ${mb(process.memoryUsage().rss)}`);
 
 const sets: [string, Buffer[]][] = [];
 for (const kind of ['small JPEG 224 px', 'drawing PNG 800 px, alpha', 'scan JPEG 12 MP'] as const) sets.push([kind, await makeSet(kind)]);
@@ -63,19 +67,28 @@ if (existsSync(bench)) {
 await embedder.embed([sets[0]![1][0]!]); // warm-up
 for (const [kind, images] of sets) {
   let t = performance.now();
-  for (const im of images) await toSquareRgb(im, { size: 320 });
+  phasePeak = 0;
+  for (const im of images) {
+    await toSquareRgb(im, { size: 320 });
+    sampleRss();
+  }
   row(`decode + resize only: ${kind}`, performance.now() - t, images.length, 'sharp');
   t = performance.now();
-  for (const im of images) await embedder.embed([im]);
+  for (const im of images) {
+    await embedder.embed([im]);
+    sampleRss();
+  }
   row(`embed, one at a time: ${kind}`, performance.now() - t, images.length, '1 thread');
 }
 {
   const images = sets[0]![1];
   let t = performance.now();
   await embedder.embed(images);
+  sampleRss();
   row('embed, one call for all (decode overlaps the backbone)', performance.now() - t, images.length, '1 thread');
   t = performance.now();
   await embedder.embedWithMirror(images);
+  sampleRss();
   row('embed with mirror image (examples)', performance.now() - t, images.length, '2 passes/image');
 }
 embedder.dispose();
@@ -86,15 +99,18 @@ if (WORKERS > 0) {
   await Promise.all(workers.map((w) => w.embed([images[0]!])));
   const t = performance.now();
   const share = workers.map((_, k) => images.filter((_, i) => i % WORKERS === k));
+  const timer = setInterval(sampleRss, 20);
   await Promise.all(workers.map((w, k) => w.embed(share[k]!)));
+  clearInterval(timer);
+  sampleRss();
   row(`embed, ${WORKERS} worker threads (aggregate)`, performance.now() - t, images.length, `${WORKERS} threads`);
   for (const w of workers) w.dispose();
 }
 
-const header = ['path', 'ms/image', 'images', 'peak RSS', 'note'];
+const header = ['path', 'ms/image', 'images', 'RSS (max in phase)', 'note'];
 const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i]!.length)));
 const line = (r: string[]) => '| ' + r.map((c, i) => c.padEnd(widths[i]!)).join(' | ') + ' |';
 console.log(line(header));
 console.log('|' + widths.map((w) => '-'.repeat(w + 2)).join('|') + '|');
 for (const r of rows) console.log(line(r));
-console.log(`peak RSS of the process: ${mb(peak())}`);
+console.log(`peak RSS of the process: ${mb(process.resourceUsage().maxRSS * 1024)} (includes generating the test images; load average ${(await import('node:os')).loadavg().map((x) => x.toFixed(1)).join(' ')})`);

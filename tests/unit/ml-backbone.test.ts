@@ -227,7 +227,7 @@ describe('configured embedders', () => {
         return { modelArtifactsInfo: { dateSaved: new Date(), modelTopologyType: 'JSON' } };
       },
     });
-    const e = await createEmbedder({ kind: 'tfjs-layers', modelJson: join(dir, 'model.json'), featureLayer: 'first', inputSize: 32, pixelRange: '0-1' });
+    const e = await createEmbedder({ kind: 'tfjs-layers', modelJson: dir, featureLayer: 'first', inputSize: 32, pixelRange: '0-1' }); // a model folder
     try {
       expect(e.dimension).toBe(8);
       expect(e.layout.blocks).toEqual([4, 4]);
@@ -244,6 +244,22 @@ describe('configured embedders', () => {
     } finally {
       e.dispose();
       model.dispose();
+    }
+  });
+
+  it('runs another TF.js graph model by configuration (BlazeFace from the same package, its own node and size)', SLOW, async () => {
+    const modelJson = defaultEmbedderConfig().modelJson.replace(/centernet\.json$/, 'blazeface.json');
+    const e = await createEmbedder({ kind: 'tfjs-graph', modelJson, inputNode: 'input', featureNode: 'StatefulPartitionedCall/functional_1/add/add', inputSize: 256, pixelRange: '-1-1', dynamicInput: false });
+    try {
+      expect(e.id).toMatch(/^blazeface-[0-9a-f]{8}-.*add_add-ap-mp-256@1$/);
+      expect(e.dimension).toBe(2 * e.layout.blocks[0]!);
+      const [a] = await e.embed([tower]);
+      const [b] = await e.embed([tower]);
+      expect(a).toHaveLength(e.dimension);
+      expect(maxAbsDiff(a!, b!)).toBeLessThanOrEqual(1e-5);
+      expect(e.id).not.toBe(embedder.id);
+    } finally {
+      e.dispose();
     }
   });
 

@@ -7,7 +7,7 @@
  * block 14, average- and max-pooled: 2 × 120 = 240 floats. What is returned (and stored) are the raw pooled
  * values; centring and normalisation happen at synthesis and scoring time (see ../centring.ts).
  */
-import { existsSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { dirname, isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { FeatureLayout } from '../centring.ts';
@@ -42,7 +42,7 @@ export interface Embedder {
 /** A TF.js graph model (model.json + shards), run up to `featureNode`. */
 export interface TfjsGraphEmbedderConfig {
   kind: 'tfjs-graph';
-  /** model.json path; relative paths resolve against the project root */
+  /** model.json path or the folder holding it; relative paths resolve against the project root */
   modelJson: string;
   inputNode: string;
   featureNode: string;
@@ -62,6 +62,7 @@ export interface TfjsGraphEmbedderConfig {
 /** A TF.js layers model, pooled at `featureLayer` (or its output). */
 export interface TfjsLayersEmbedderConfig {
   kind: 'tfjs-layers';
+  /** model.json path or the folder holding it */
   modelJson: string;
   featureLayer?: string;
   inputSize: number;
@@ -137,6 +138,12 @@ function resolvePath(p: string, root: string): string {
   return isAbsolute(p) ? p : resolve(root, p);
 }
 
+/** A model.json path, or a folder holding model.json. */
+function resolveModelJson(p: string, root: string): string {
+  const full = resolvePath(p, root);
+  return existsSync(full) && statSync(full).isDirectory() ? join(full, 'model.json') : full;
+}
+
 function checkCommon(c: { inputSize: number; pooling?: Pooling[] }): void {
   if (!Number.isInteger(c.inputSize) || c.inputSize < 16 || c.inputSize > 4096) throw new Error(`inputSize must be an integer in 16..4096, got ${c.inputSize}`);
   if (c.pooling && (c.pooling.length === 0 || c.pooling.some((p) => p !== 'avg' && p !== 'max'))) throw new Error(`pooling must list 'avg' and/or 'max', got ${JSON.stringify(c.pooling)}`);
@@ -147,7 +154,7 @@ registerEmbedderKind('tfjs-graph', async (config, root) => {
   checkCommon(c);
   const { TfjsGraphEmbedder } = await import('./tfjs-embedder.ts');
   return TfjsGraphEmbedder.load({
-    modelJson: resolvePath(c.modelJson, root),
+    modelJson: resolveModelJson(c.modelJson, root),
     inputNode: c.inputNode,
     featureNode: c.featureNode,
     inputSize: c.inputSize,
@@ -166,7 +173,7 @@ registerEmbedderKind('tfjs-layers', async (config, root) => {
   checkCommon(c);
   const { TfjsLayersEmbedder } = await import('./tfjs-embedder.ts');
   return TfjsLayersEmbedder.load({
-    modelJson: resolvePath(c.modelJson, root),
+    modelJson: resolveModelJson(c.modelJson, root),
     featureLayer: c.featureLayer,
     inputSize: c.inputSize,
     pixelRange: c.pixelRange ?? '0-1',
