@@ -43,7 +43,7 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   return path;
 }
 
-export const clientBuildDir = join(projectRoot, 'dist', 'client');
+export const clientBuildDir = process.env.CARTOUCHE_CLIENT_DIR ?? join(projectRoot, 'dist', 'client');
 
 export function assertClientBuilt(): void {
   if (!existsSync(join(clientBuildDir, 'index.html'))) throw new Error('dist/client is missing: run `npm run build` (npm test does it for you)');
