@@ -10,13 +10,6 @@ import { sessionQueryOptions } from './session';
  * request body has been sent (fetch has no upload progress).
  */
 
-/** Query keys of intake (kept with the module until they move into query-keys.ts). */
-export const intakeKeys = {
-  all: ['intake'] as const,
-  settings: () => [...intakeKeys.all, 'settings'] as const,
-  import: (collectionId: number, importId: number) => [...intakeKeys.all, 'import', collectionId, importId] as const,
-};
-
 export interface IntakeSettings {
   formats: Array<{ format: string; label: string; mimeType: string; extensions: string[] }>;
   maxFileBytes: number;
@@ -44,7 +37,7 @@ export async function getIntakeSettings(signal?: AbortSignal): Promise<IntakeSet
 }
 
 export function intakeSettingsQueryOptions() {
-  return queryOptions({ queryKey: intakeKeys.settings(), queryFn: ({ signal }) => getIntakeSettings(signal), staleTime: 10 * 60_000 });
+  return queryOptions({ queryKey: queryKeys.intake.settings(), queryFn: ({ signal }) => getIntakeSettings(signal), staleTime: 10 * 60_000 });
 }
 
 export function useIntakeSettings() {
@@ -263,7 +256,7 @@ export function usePreviewSheet() {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: ({ collectionId, file }: { collectionId: number; file: File }) => previewSheet(collectionId, file, csrfTokensFrom(queryClient)),
-    onSuccess: (preview) => queryClient.setQueryData(intakeKeys.import(preview.collectionId, preview.id), preview),
+    onSuccess: (preview) => queryClient.setQueryData(queryKeys.intake.import(preview.collectionId, preview.id), preview),
   });
 }
 
@@ -274,7 +267,7 @@ export async function getImport(collectionId: number, importId: number, signal?:
 }
 
 export function importQueryOptions(collectionId: number, importId: number) {
-  return queryOptions({ queryKey: intakeKeys.import(collectionId, importId), queryFn: ({ signal }) => getImport(collectionId, importId, signal) });
+  return queryOptions({ queryKey: queryKeys.intake.import(collectionId, importId), queryFn: ({ signal }) => getImport(collectionId, importId, signal) });
 }
 
 export function useImport(collectionId: number, importId: number | null) {
@@ -292,12 +285,12 @@ export function useApplyImport() {
   return useMutation({
     mutationFn: applyImport,
     onSuccess: (applied) => {
-      queryClient.setQueryData(intakeKeys.import(applied.collectionId, applied.id), applied);
+      queryClient.setQueryData(queryKeys.intake.import(applied.collectionId, applied.id), applied);
       void queryClient.invalidateQueries({ queryKey: queryKeys.collections.all });
     },
     onError: (_error, { collectionId, importId }) => {
       // e.g. applied meanwhile from another tab: show what the server has
-      void queryClient.invalidateQueries({ queryKey: intakeKeys.import(collectionId, importId) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.intake.import(collectionId, importId) });
     },
   });
 }

@@ -17,6 +17,18 @@ export const queryKeys = {
     all: ['people'] as const,
     list: () => [...queryKeys.people.all, 'list'] as const,
   },
+  intake: {
+    all: ['intake'] as const,
+    settings: () => [...queryKeys.intake.all, 'settings'] as const,
+    import: (collectionId: number, importId: number) => [...queryKeys.intake.all, 'import', collectionId, importId] as const,
+  },
+  /** Night-shift runs and schedules. */
+  runs: {
+    all: ['night-shift'] as const,
+    list: (collectionId: number) => [...queryKeys.runs.all, 'runs', collectionId] as const,
+    run: (runId: number) => [...queryKeys.runs.all, 'run', runId] as const,
+    schedule: (collectionId: number) => [...queryKeys.runs.all, 'schedule', collectionId] as const,
+  },
   mailbox: {
     all: ['mailbox'] as const,
     list: () => [...queryKeys.mailbox.all, 'list'] as const,

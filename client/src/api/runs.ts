@@ -8,14 +8,6 @@ import { queryKeys } from './query-keys';
  * A run that is queued or running is asked for again every two seconds until it is over.
  */
 
-/** Query keys of the night shift (kept with the module until they move into query-keys.ts). */
-export const runKeys = {
-  all: ['night-shift'] as const,
-  list: (collectionId: number) => [...runKeys.all, 'runs', collectionId] as const,
-  run: (runId: number) => [...runKeys.all, 'run', runId] as const,
-  schedule: (collectionId: number) => [...runKeys.all, 'schedule', collectionId] as const,
-};
-
 /** How often a queued or running run is asked for again. */
 export const POLL_MS = 2000;
 
@@ -133,7 +125,7 @@ export async function getRun(runId: number, signal?: AbortSignal): Promise<Run> 
  */
 export function runsQueryOptions(collectionId: number, selectedRunId: number | null = null) {
   return queryOptions({
-    queryKey: runKeys.list(collectionId),
+    queryKey: queryKeys.runs.list(collectionId),
     queryFn: ({ signal }) => getRuns(collectionId, signal),
     refetchInterval: (query) => (query.state.data?.some((r) => isActive(r) && r.id !== selectedRunId) ? POLL_MS : false),
   });
@@ -145,7 +137,7 @@ export function useRuns(collectionId: number | null, selectedRunId: number | nul
 
 export function runQueryOptions(runId: number) {
   return queryOptions({
-    queryKey: runKeys.run(runId),
+    queryKey: queryKeys.runs.run(runId),
     queryFn: ({ signal }) => getRun(runId, signal),
     refetchInterval: (query) => (query.state.data && isActive(query.state.data) ? POLL_MS : false),
   });
@@ -153,7 +145,7 @@ export function runQueryOptions(runId: number) {
 
 /** Puts a fresh copy of a run into its collection's list, so the list and the detail agree. */
 function storeRunInList(queryClient: QueryClient, run: Run): void {
-  queryClient.setQueryData<Run[]>(runKeys.list(run.collectionId), (runs) => {
+  queryClient.setQueryData<Run[]>(queryKeys.runs.list(run.collectionId), (runs) => {
     if (!runs) return runs;
     return runs.some((r) => r.id === run.id) ? runs.map((r) => (r.id === run.id ? run : r)) : [run, ...runs];
   });
@@ -190,11 +182,11 @@ export function useStartRun() {
   return useMutation({
     mutationFn: startRun,
     onSuccess: (run) => {
-      queryClient.setQueryData(runKeys.run(run.id), run);
+      queryClient.setQueryData(queryKeys.runs.run(run.id), run);
       storeRunInList(queryClient, run);
     },
     // e.g. a run was already under way: show it
-    onError: (_error, collectionId) => void queryClient.invalidateQueries({ queryKey: runKeys.list(collectionId) }),
+    onError: (_error, collectionId) => void queryClient.invalidateQueries({ queryKey: queryKeys.runs.list(collectionId) }),
   });
 }
 
@@ -209,11 +201,11 @@ export function useCancelRun() {
   return useMutation({
     mutationFn: cancelRun,
     onSuccess: (run) => {
-      queryClient.setQueryData(runKeys.run(run.id), run);
+      queryClient.setQueryData(queryKeys.runs.run(run.id), run);
       storeRunInList(queryClient, run);
     },
     // e.g. the run finished meanwhile: show what the server has
-    onError: (_error, runId) => void queryClient.invalidateQueries({ queryKey: runKeys.run(runId) }),
+    onError: (_error, runId) => void queryClient.invalidateQueries({ queryKey: queryKeys.runs.run(runId) }),
   });
 }
 
@@ -226,7 +218,7 @@ export async function getSchedule(collectionId: number, signal?: AbortSignal): P
 }
 
 export function scheduleQueryOptions(collectionId: number) {
-  return queryOptions({ queryKey: runKeys.schedule(collectionId), queryFn: ({ signal }) => getSchedule(collectionId, signal) });
+  return queryOptions({ queryKey: queryKeys.runs.schedule(collectionId), queryFn: ({ signal }) => getSchedule(collectionId, signal) });
 }
 
 export function useSchedule(collectionId: number | null) {
@@ -243,6 +235,6 @@ export function useSaveSchedule() {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: saveSchedule,
-    onSuccess: (saved, { collectionId }) => queryClient.setQueryData(runKeys.schedule(collectionId), saved),
+    onSuccess: (saved, { collectionId }) => queryClient.setQueryData(queryKeys.runs.schedule(collectionId), saved),
   });
 }

@@ -1,5 +1,4 @@
 import { useId } from 'react';
-import { useSearchParams } from 'react-router';
 import { useCollections } from '../api/collections';
 import { problemOf, problemReference } from '../api/http';
 import { useIntakeSettings } from '../api/intake';
@@ -8,8 +7,8 @@ import { SheetImport } from '../components/intake/sheet-import';
 import { UploadList } from '../components/intake/upload-list';
 import { useUploadQueue } from '../components/intake/use-upload-queue';
 import { orList } from '../components/intake/words';
+import { CollectionPicker, useCollectionParam } from '../components/collections/collection-picker';
 import { Card } from '../components/ui/card';
-import { SelectField } from '../components/ui/field';
 import { ProblemNotice } from '../components/ui/problem-notice';
 import { formatBytes, formatCount } from '../lib/format';
 
@@ -17,14 +16,12 @@ import { formatBytes, formatCount } from '../lib/format';
 export function IntakeRoute() {
   const collections = useCollections();
   const settings = useIntakeSettings();
-  const [params, setParams] = useSearchParams();
   const { queue, entries, totals, announcement } = useUploadQueue(settings.data?.maxFileBytes);
   const scansHeading = useId();
   const sheetHeading = useId();
 
   const list = collections.data?.collections ?? [];
-  const wanted = Number(params.get('collection'));
-  const chosen = list.find((c) => c.id === wanted) ?? list[0] ?? null;
+  const { chosen, choose } = useCollectionParam(list);
 
   const hint = settings.data
     ? `${orList(settings.data.formats.map((f) => f.label))}, up to ${formatBytes(settings.data.maxFileBytes)} each and ${formatCount(
@@ -62,20 +59,12 @@ export function IntakeRoute() {
           </Card>
         ) : (
           <>
-            <div className="max-w-md">
-              <SelectField
-                label="Collection"
-                hint="Scans and catalogue records go into this collection."
-                value={chosen ? String(chosen.id) : ''}
-                onChange={(event) => setParams({ collection: event.currentTarget.value }, { replace: true })}
-              >
-                {list.map((c) => (
-                  <option key={c.id} value={c.id}>
-                    {c.name} ({formatCount(c.itemCount)} {c.itemCount === 1 ? 'item' : 'items'})
-                  </option>
-                ))}
-              </SelectField>
-            </div>
+            <CollectionPicker
+              collections={list}
+              value={chosen?.id ?? null}
+              onChange={choose}
+              hint="Scans and catalogue records go into this collection."
+            />
 
             <Card as="section" aria-labelledby={scansHeading} className="space-y-5">
               <div className="space-y-1">

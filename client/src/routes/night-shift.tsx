@@ -10,9 +10,8 @@ import { ScheduleFacts, ScheduleForm } from '../components/night-shift/schedule-
 import { useRunAnnouncements } from '../components/night-shift/use-run-announcements';
 import { Button } from '../components/ui/button';
 import { Card } from '../components/ui/card';
-import { SelectField } from '../components/ui/field';
+import { CollectionPicker, useCollectionParam } from '../components/collections/collection-picker';
 import { ProblemNotice } from '../components/ui/problem-notice';
-import { formatCount } from '../lib/format';
 
 /** The night shift of a collection: when it runs, running it now, and what each run did. */
 export function NightShiftRoute() {
@@ -27,8 +26,7 @@ export function NightShiftRoute() {
   const [started, setStarted] = useState('');
 
   const list = collections.data?.collections ?? [];
-  const wanted = Number(params.get('collection'));
-  const chosen = list.find((c) => c.id === wanted) ?? list[0] ?? null;
+  const { chosen, choose } = useCollectionParam(list);
   const collectionId = chosen?.id ?? null;
 
   const wantedRun = Number(params.get('run'));
@@ -89,20 +87,12 @@ export function NightShiftRoute() {
           </Card>
         ) : (
           <>
-            <div className="max-w-md">
-              <SelectField
-                label="Collection"
-                hint="The settings and runs below belong to this collection."
-                value={String(chosen.id)}
-                onChange={(event) => setParams({ collection: event.currentTarget.value }, { replace: true })}
-              >
-                {list.map((c) => (
-                  <option key={c.id} value={c.id}>
-                    {c.name} ({formatCount(c.itemCount)} {c.itemCount === 1 ? 'item' : 'items'})
-                  </option>
-                ))}
-              </SelectField>
-            </div>
+            <CollectionPicker
+              collections={list}
+              value={chosen.id}
+              onChange={choose}
+              hint="The settings and runs below belong to this collection."
+            />
 
             <Card as="section" aria-labelledby={settingsHeading} className="space-y-5">
               <div className="space-y-1">

@@ -1,106 +1,34 @@
 import type { RunStatus, StageState } from '../../api/runs';
-import { cx } from '../ui/cx';
+import { StatusBadge, type StatusTone } from '../ui/status-badge';
 import { stageStateWords, statusWords } from './words';
 
-type Shape = 'waiting' | 'moving' | 'done' | 'failed' | 'stopped' | 'passed';
-
-/** Each state has its own shape and frame; the words beside it always carry the meaning. */
-const frames: Record<Shape, string> = {
-  waiting: 'border-line border-dotted bg-paper text-ink',
-  moving: 'border-ink border-dashed bg-sunk text-ink',
-  done: 'border-line bg-raised text-ink',
-  failed: 'border-ink bg-ink text-paper',
-  stopped: 'border-line bg-sunk text-ink',
-  passed: 'border-line border-dotted bg-raised text-ink',
-};
-
-function Glyph({ shape }: { shape: Shape }) {
-  const common = { width: 14, height: 14, viewBox: '0 0 14 14', 'aria-hidden': true, focusable: false } as const;
-  switch (shape) {
-    case 'waiting':
-      // a clock face
-      return (
-        <svg {...common}>
-          <circle cx="7" cy="7" r="5.25" fill="none" stroke="currentColor" strokeWidth="1.5" />
-          <path d="M7 4v3.2l2 1.3" fill="none" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
-        </svg>
-      );
-    case 'moving':
-      // a half-filled circle
-      return (
-        <svg {...common}>
-          <circle cx="7" cy="7" r="5" fill="none" stroke="currentColor" strokeWidth="1.75" />
-          <path d="M7 2a5 5 0 0 1 0 10z" fill="currentColor" />
-        </svg>
-      );
-    case 'done':
-      // a tick in a filled circle
-      return (
-        <svg {...common}>
-          <circle cx="7" cy="7" r="6" fill="currentColor" />
-          <path d="M4.3 7.2l1.9 1.9 3.6-3.8" fill="none" stroke="var(--color-raised)" strokeWidth="1.6" strokeLinecap="round" strokeLinejoin="round" />
-        </svg>
-      );
-    case 'failed':
-      // a cross in a circle
-      return (
-        <svg {...common}>
-          <circle cx="7" cy="7" r="5" fill="none" stroke="currentColor" strokeWidth="1.75" />
-          <path d="M4.6 4.6l4.8 4.8M9.4 4.6l-4.8 4.8" stroke="currentColor" strokeWidth="1.75" strokeLinecap="round" />
-        </svg>
-      );
-    case 'stopped':
-      // a square: stopped on request
-      return (
-        <svg {...common}>
-          <rect x="2.5" y="2.5" width="9" height="9" rx="1.5" fill="currentColor" />
-        </svg>
-      );
-    case 'passed':
-      // an arrow past a bar: nothing to do
-      return (
-        <svg {...common}>
-          <path d="M2 7h8M7.5 4l3 3-3 3" fill="none" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" strokeLinejoin="round" />
-          <path d="M12.5 2.5v9" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />
-        </svg>
-      );
-  }
-}
-
-const statusShapes: Record<RunStatus, Shape> = {
+const statusTones: Record<RunStatus, StatusTone> = {
   queued: 'waiting',
-  running: 'moving',
+  running: 'attention',
   succeeded: 'done',
-  failed: 'failed',
+  failed: 'down',
   cancelled: 'stopped',
 };
 
-const stageShapes: Record<StageState, Shape> = {
+const stageTones: Record<StageState, StatusTone> = {
   pending: 'waiting',
-  running: 'moving',
+  running: 'attention',
   done: 'done',
   skipped: 'passed',
 };
 
-function Badge({ shape, text, className }: { shape: Shape; text: string; className?: string | undefined }) {
+export function RunStatusBadge({ status, className }: { status: RunStatus; className?: string }) {
   return (
-    <span
-      className={cx(
-        'inline-flex shrink-0 items-center gap-1.5 rounded-full border-2 px-2.5 py-0.5 text-sm font-bold leading-snug',
-        frames[shape],
-        className,
-      )}
-    >
-      <Glyph shape={shape} />
-      <span>{text}</span>
-    </span>
+    <StatusBadge tone={statusTones[status]} className={className}>
+      {statusWords[status]}
+    </StatusBadge>
   );
 }
 
-export function RunStatusBadge({ status, className }: { status: RunStatus; className?: string }) {
-  return <Badge shape={statusShapes[status]} text={statusWords[status]} className={className} />;
-}
-
 export function StageStateBadge({ state, className }: { state: StageState; className?: string }) {
-  return <Badge shape={stageShapes[state]} text={stageStateWords[state]} className={className} />;
+  return (
+    <StatusBadge tone={stageTones[state]} className={className}>
+      {stageStateWords[state]}
+    </StatusBadge>
+  );
 }
