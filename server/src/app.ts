@@ -69,7 +69,8 @@ export function createApp(ctx: AppContext, opts: { mailer?: Mailer } = {}): Cart
       next(new HttpProblem(503, 'Client not built', 'The web client has not been built yet: run `npm run build` (or `npm start`).'));
       return;
     }
-    res.set('Cache-Control', 'no-cache').sendFile(indexHtml);
+    // dotfiles: the client folder may sit below a dot folder (e.g. .data/ in tests); the file name is fixed, not user input
+    res.set('Cache-Control', 'no-cache').sendFile(indexHtml, { dotfiles: 'allow' });
   });
   app.use(problemHandler);
   return app;

@@ -7,7 +7,7 @@ import { Button } from '../ui/button';
 import { EmailAddress } from '../ui/email-address';
 import { TextField } from '../ui/field';
 import { Notice } from '../ui/notice';
-import { ProblemNotice } from '../ui/problem-notice';
+import { FormErrors } from '../ui/form-errors';
 
 /**
  * Asks for a password-reset link. The answer is the same whether or not an account exists,
@@ -62,20 +62,7 @@ export function ResetRequestForm() {
       </div>
 
       <form noValidate onSubmit={onSubmit} className="space-y-5">
-        {problem ? (
-          <ProblemNotice
-            id={problemId}
-            announce
-            headingLevel={2}
-            title={problem.title}
-            detail={problem.detail}
-            items={other.length > 0 ? other : undefined}
-          />
-        ) : emailError ? (
-          <p role="alert" className="sr-only">
-            {emailError}
-          </p>
-        ) : null}
+        <FormErrors id={problemId} problem={problem} items={other} alert={emailError} />
 
         <TextField
           ref={emailRef}

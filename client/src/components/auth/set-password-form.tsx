@@ -6,7 +6,7 @@ import { splitFieldErrors } from '../../lib/field-errors';
 import { Button } from '../ui/button';
 import { Checkbox } from '../ui/checkbox';
 import { TextField } from '../ui/field';
-import { ProblemNotice } from '../ui/problem-notice';
+import { FormErrors } from '../ui/form-errors';
 
 interface FieldErrors {
   password?: string;
@@ -89,20 +89,7 @@ export function SetPasswordForm({
 
   return (
     <form noValidate onSubmit={onSubmit} className="space-y-5">
-      {problem ? (
-        <ProblemNotice
-          id={problemId}
-          announce
-          headingLevel={2}
-          title={problem.title}
-          detail={problem.detail}
-          items={other.length > 0 ? other : undefined}
-        />
-      ) : clientErrors ? (
-        <p role="alert" className="sr-only">
-          {clientErrors}
-        </p>
-      ) : null}
+      <FormErrors id={problemId} problem={problem} items={other} alert={clientErrors} />
 
       {/* Lets password managers store the new password with the right account. */}
       <input type="text" name="username" autoComplete="username" value={link.email} readOnly hidden />

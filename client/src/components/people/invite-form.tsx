@@ -8,7 +8,7 @@ import { Button } from '../ui/button';
 import { EmailAddress } from '../ui/email-address';
 import { SelectField, TextField } from '../ui/field';
 import { Notice } from '../ui/notice';
-import { ProblemNotice } from '../ui/problem-notice';
+import { FormErrors } from '../ui/form-errors';
 
 type Field = 'email' | 'displayName' | 'role';
 type FieldErrors = Partial<Record<Field, string>>;
@@ -85,24 +85,14 @@ export function InviteForm({ labelledBy }: { labelledBy?: string }) {
         ) : null}
       </div>
 
-      {problem && problem.status !== 409 ? (
-        <ProblemNotice
-          id={problemId}
-          announce
-          headingLevel={3}
-          title={problem.title}
-          detail={problem.detail}
-          items={other.length > 0 ? other : undefined}
-        />
-      ) : problem ? (
-        <p role="alert" className="sr-only">
-          {emailError}
-        </p>
-      ) : clientErrors ? (
-        <p role="alert" className="sr-only">
-          {clientErrors}
-        </p>
-      ) : null}
+      {/* a 409 (the address is taken) is shown at the e-mail field itself, so only announced here */}
+      <FormErrors
+        id={problemId}
+        problem={problem && problem.status !== 409 ? problem : null}
+        headingLevel={3}
+        items={other}
+        alert={problem ? emailError : clientErrors}
+      />
 
       <div className="grid grid-cols-1 gap-5 md:grid-cols-3">
         <TextField

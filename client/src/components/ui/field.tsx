@@ -1,4 +1,4 @@
-import { useId, type InputHTMLAttributes, type ReactNode, type Ref, type SelectHTMLAttributes } from 'react';
+import { useId, type InputHTMLAttributes, type ReactNode, type Ref, type SelectHTMLAttributes, type TextareaHTMLAttributes } from 'react';
 import { cx } from './cx';
 
 /** Shared look of text inputs and selects: 44 px tall, a 3:1 boundary, the shared focus ring. */
@@ -59,94 +59,70 @@ function describedBy(...ids: Array<string | false | undefined | null>): string |
   return joined === '' ? undefined : joined;
 }
 
-export interface TextFieldProps extends Omit<InputHTMLAttributes<HTMLInputElement>, 'id'> {
+/** What every field shares: a label, an optional hint and an optional error, both read with the control. */
+interface FieldShellProps {
   label: ReactNode;
   hint?: ReactNode;
-  /** The field's own error, shown above the input and linked to it. */
+  /** The field's own error, shown above the control and linked to it. */
   error?: string | undefined;
   /** Ids of further descriptions, e.g. a form-level error that concerns this field. */
   describedByIds?: string | undefined;
   fieldClassName?: string;
+}
+
+/** Ids and ARIA wiring for one field: the frame's props and the attributes its control needs. */
+function useFieldShell({ label, hint, error, describedByIds, fieldClassName }: FieldShellProps, invalid?: unknown) {
+  const id = useId();
+  const hintId = `${id}-hint`;
+  const errorId = `${id}-error`;
+  return {
+    frame: { id, label, hint, hintId, error, errorId, className: fieldClassName },
+    control: {
+      id,
+      'aria-invalid': error || invalid ? (true as const) : undefined,
+      'aria-describedby': describedBy(error ? errorId : null, hint ? hintId : null, describedByIds),
+    },
+  };
+}
+
+export interface TextFieldProps extends Omit<InputHTMLAttributes<HTMLInputElement>, 'id'>, FieldShellProps {
   ref?: Ref<HTMLInputElement>;
 }
 
 /** A labelled input with an optional hint and error, both read with the field. */
-export function TextField({
-  label,
-  hint,
-  error,
-  describedByIds,
-  fieldClassName,
-  className,
-  ref,
-  'aria-invalid': ariaInvalid,
-  ...input
-}: TextFieldProps) {
-  const id = useId();
-  const hintId = `${id}-hint`;
-  const errorId = `${id}-error`;
+export function TextField({ label, hint, error, describedByIds, fieldClassName, className, ref, 'aria-invalid': ariaInvalid, ...input }: TextFieldProps) {
+  const { frame, control } = useFieldShell({ label, hint, error, describedByIds, fieldClassName }, ariaInvalid);
   return (
-    <FieldFrame
-      id={id}
-      label={label}
-      hint={hint}
-      hintId={hintId}
-      error={error}
-      errorId={errorId}
-      className={fieldClassName}
-    >
-      <input
-        ref={ref}
-        id={id}
-        aria-invalid={error || ariaInvalid ? true : undefined}
-        aria-describedby={describedBy(error ? errorId : null, hint ? hintId : null, describedByIds)}
-        className={cx(controlClass, className)}
-        {...input}
-      />
+    <FieldFrame {...frame}>
+      <input ref={ref} {...control} className={cx(controlClass, className)} {...input} />
     </FieldFrame>
   );
 }
 
-export interface SelectFieldProps extends Omit<SelectHTMLAttributes<HTMLSelectElement>, 'id'> {
-  label: ReactNode;
-  hint?: ReactNode;
-  error?: string | undefined;
-  fieldClassName?: string;
+export interface TextAreaFieldProps extends Omit<TextareaHTMLAttributes<HTMLTextAreaElement>, 'id'>, FieldShellProps {
+  ref?: Ref<HTMLTextAreaElement>;
+}
+
+/** A labelled multi-line text box (descriptions, notes), wired like TextField. */
+export function TextAreaField({ label, hint, error, describedByIds, fieldClassName, className, ref, 'aria-invalid': ariaInvalid, ...textarea }: TextAreaFieldProps) {
+  const { frame, control } = useFieldShell({ label, hint, error, describedByIds, fieldClassName }, ariaInvalid);
+  return (
+    <FieldFrame {...frame}>
+      <textarea ref={ref} rows={4} {...control} className={cx(controlClass, 'min-h-24 leading-relaxed', className)} {...textarea} />
+    </FieldFrame>
+  );
+}
+
+export interface SelectFieldProps extends Omit<SelectHTMLAttributes<HTMLSelectElement>, 'id'>, FieldShellProps {
   ref?: Ref<HTMLSelectElement>;
 }
 
 /** A labelled native select. */
-export function SelectField({
-  label,
-  hint,
-  error,
-  fieldClassName,
-  className,
-  children,
-  ref,
-  ...select
-}: SelectFieldProps) {
-  const id = useId();
-  const hintId = `${id}-hint`;
-  const errorId = `${id}-error`;
+export function SelectField({ label, hint, error, describedByIds, fieldClassName, className, children, ref, 'aria-invalid': ariaInvalid, ...select }: SelectFieldProps) {
+  const { frame, control } = useFieldShell({ label, hint, error, describedByIds, fieldClassName }, ariaInvalid);
   return (
-    <FieldFrame
-      id={id}
-      label={label}
-      hint={hint}
-      hintId={hintId}
-      error={error}
-      errorId={errorId}
-      className={fieldClassName}
-    >
-      <select
-        ref={ref}
-        id={id}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(error ? errorId : null, hint ? hintId : null)}
-        className={cx(controlClass, 'pr-8', className)}
-        {...select}
-      >
+    <FieldFrame {...frame}>
+      <select ref={ref} {...control} className={cx(controlClass, 'pr-8', className)} {...select}>
         {children}
       </select>
     </FieldFrame>
