@@ -3,6 +3,9 @@ import type { MigrationParams } from 'umzug';
 import * as m0001 from './0001-initial-schema.ts';
 import * as m0002 from './0002-user-tokens.ts';
 import * as m0003 from './0003-intake.ts';
+import * as m0004 from './0004-weight-maps.ts';
+import * as m0005 from './0005-review.ts';
+import * as m0007 from './0007-ledger-exports.ts';
 
 export interface MigrationModule {
   up(params: MigrationParams<QueryInterface>): Promise<void>;
@@ -17,4 +20,7 @@ export const migrations: Array<[name: string, module: MigrationModule]> = [
   ['0001-initial-schema', m0001],
   ['0002-user-tokens', m0002],
   ['0003-intake', m0003],
+  ['0004-weight-maps', m0004],
+  ['0005-review', m0005],
+  ['0007-ledger-exports', m0007],
 ];

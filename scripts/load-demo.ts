@@ -10,6 +10,7 @@ import { Collection, Example, Item, Subject, Suggestion, User } from '../server/
 import { startRun } from '../server/src/services/runs.ts';
 import { Storage } from '../server/src/services/storage.ts';
 import { buildDemoScenario, renderItemImage, type DemoScenario } from './demo/index.ts';
+import { loadReviewDemoState } from './demo/review-state.ts';
 
 export interface DemoLoadResult {
   loaded: boolean;
@@ -181,6 +182,8 @@ export async function loadDemoScenario(
       }
     }
   });
+  // the review desk: a double-review share and blind second reviews of its approved items
+  await loadReviewDemoState(sequelize);
   // the first night-shift run of each collection: the worker reads the scans, builds the subject models and suggests
   for (const c of await Collection.findAll()) await startRun(sequelize, c.id, 'manual', null);
   return { loaded: true, people: scenario.people.length, collections: collections.length, subjects: subjectCount, items: itemCount };

@@ -4,6 +4,7 @@ import { logger } from '../../server/src/logger.ts';
 import { Collection } from '../../server/src/models/index.ts';
 import { enqueueJob } from './queue.ts';
 import { housekeepingKey } from './tasks/housekeeping.ts';
+import { enqueueDueWeeklyLedgers } from './tasks/weekly-ledger.ts';
 
 /** The minute a schedule fired, as part of an idempotency key (every worker's tick of one minute agrees). */
 export function slotKey(collectionId: number, at: Date): string {
@@ -22,6 +23,10 @@ export function startSchedules(opts: { refreshMs?: number } = {}): { stop(): voi
     enqueueJob({ kind: 'housekeeping', idempotencyKey: housekeepingKey(new Date()) }).catch((err: unknown) => logger.warn({ err }, 'could not enqueue housekeeping'));
   fixed.push(cron.schedule('30 3 * * *', enqueueHousekeeping, { timezone: 'UTC', name: 'housekeeping' }));
   void enqueueHousekeeping();
+  // the weekly coverage ledger: each collection's weekday and hour are read in its own time zone every quarter hour
+  const enqueueWeekly = () => enqueueDueWeeklyLedgers().catch((err: unknown) => logger.warn({ err }, 'could not enqueue the weekly ledgers'));
+  fixed.push(cron.schedule('*/15 * * * *', enqueueWeekly, { timezone: 'UTC', name: 'weekly-ledger' }));
+  void enqueueWeekly();
 
   let perCollection = new Map<string, ScheduledTask>();
   const refresh = async () => {

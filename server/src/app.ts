@@ -12,12 +12,18 @@ import { logger } from './logger.ts';
 import { createMailer, type Mailer } from './mail/mailer.ts';
 import { registerAuthRoutes } from './routes/auth.ts';
 import { registerCollectionRoutes } from './routes/collections.ts';
+import { registerDashboardRoutes } from './routes/dashboard.ts';
+import { registerExportRoutes } from './routes/exports.ts';
+import { registerIiifRoutes } from './routes/iiif.ts';
 import { registerHealthRoutes } from './routes/health.ts';
 import { registerIntakeRoutes } from './routes/intake.ts';
 import { registerMailboxRoutes } from './routes/mailbox.ts';
 import { registerPeopleRoutes } from './routes/people.ts';
 import { registerRunRoutes } from './routes/runs.ts';
+import { registerItemRoutes } from './routes/items.ts';
+import { registerReviewRoutes } from './routes/review.ts';
 import { registerSubjectRoutes } from './routes/subjects.ts';
+import { registerVocabularyRoutes } from './routes/vocabulary.ts';
 
 export interface CartoucheApp extends Express {
   locals: Express['locals'] & { routes: RouteRecord[] };
@@ -55,9 +61,15 @@ export function createApp(ctx: AppContext, opts: { mailer?: Mailer } = {}): Cart
   registerCollectionRoutes(api, ctx);
   registerIntakeRoutes(api, ctx);
   registerSubjectRoutes(api, ctx);
+  registerVocabularyRoutes(api, ctx);
   registerRunRoutes(api, ctx);
+  registerReviewRoutes(api, ctx);
+  registerItemRoutes(api, ctx);
   registerPeopleRoutes(api, ctx, mailer);
   registerMailboxRoutes(api, ctx);
+  registerExportRoutes(api, ctx);
+  registerIiifRoutes(api, ctx);
+  registerDashboardRoutes(api, ctx);
   api.router.use(apiNotFound);
   app.use('/api', api.router);
   app.locals.routes = api.records;

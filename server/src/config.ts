@@ -2,6 +2,7 @@ import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { embedderSelectionFromEnv, type EmbedderSelection } from './ml/backbone/selection.ts';
 
 export const projectRoot = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 
@@ -60,6 +61,8 @@ export interface AppConfig {
   /** the development mailbox page (captured mail of the local fake SMTP server); never in production */
   mailboxEnabled: boolean;
   login: { maxAttempts: number; windowMs: number };
+  /** which embedder the API and the worker use (CARTOUCHE_EMBEDDER, CARTOUCHE_EMBEDDER_CONFIG, CARTOUCHE_MODEL_CACHE_DIR) */
+  embedder: EmbedderSelection;
 }
 
 /** `a=admin,b=editor` → { a: 'admin', b: 'editor' }, refusing unknown roles. */
@@ -171,5 +174,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
       maxAttempts: num(env.CARTOUCHE_LOGIN_MAX_ATTEMPTS, 5, 'CARTOUCHE_LOGIN_MAX_ATTEMPTS'),
       windowMs: num(env.CARTOUCHE_LOGIN_WINDOW_MINUTES, 15, 'CARTOUCHE_LOGIN_WINDOW_MINUTES') * 60_000,
     },
+    embedder: embedderSelectionFromEnv({ ...env, CARTOUCHE_DATA_DIR: dataDir }, projectRoot),
   };
 }

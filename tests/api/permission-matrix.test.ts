@@ -8,15 +8,16 @@ import type { RouteRecord } from '../../server/src/http/routes.ts';
 import { createMailer } from '../../server/src/mail/mailer.ts';
 import { listMessages } from '../../server/src/mail/mailbox.ts';
 import { ROLES, type Role } from '../../server/src/models/index.ts';
+import { ExportFile } from '../../server/src/models/index.ts';
 import { issueToken } from '../../server/src/services/people.ts';
 import { startRun } from '../../server/src/services/runs.ts';
 import sharp from 'sharp';
-import { Example, Item } from '../../server/src/models/index.ts';
+import { Collection, Example, Item } from '../../server/src/models/index.ts';
 import { embedStoredFile, processEmbedder } from '../../server/src/services/features.ts';
 import { ingestFile, intakeLimits } from '../../server/src/services/ingest.ts';
 import { previewImport } from '../../server/src/services/metadata-import.ts';
 import { Storage } from '../../server/src/services/storage.ts';
-import { makeCollection, makeSubject } from '../helpers/fixtures.ts';
+import { makeCollection, makeItem, makeSubject, makeSuggestion } from '../helpers/fixtures.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
 import { startTestSmtp } from '../helpers/mail.ts';
 import { TEST_PASSWORD, makePerson, signIn } from '../helpers/people.ts';
@@ -70,12 +71,38 @@ async function ingestedItem(): Promise<number> {
   if (outcome.outcome !== 'ingested') throw new Error(`sample scan not ingested: ${JSON.stringify(outcome)}`);
   return outcome.itemId;
 }
+/** a finished export with its file in storage */
+async function readyExport(): Promise<ExportFile> {
+  const c = await makeCollection();
+  const fileKey = await new Storage(config.storageDir).put(Buffer.from(`Identifier\r\nMATRIX-${++shade}\r\n`));
+  return ExportFile.create({ collectionId: c.id, kind: 'items_csv', periodFrom: null, periodTo: null, status: 'ready', fileKey, fileName: 'items.csv', byteSize: 20, rowCount: 1, requestedBy: null, error: null, finishedAt: new Date() });
+}
 /** a collection with one item and a previewed sheet that would change it */
 async function previewedImport(): Promise<{ collectionId: number; importId: number }> {
   const itemId = await ingestedItem();
   const { collectionId } = (await Item.findByPk(itemId))!;
   const preview = await previewImport({ collectionId, fileName: 'matrix.csv', data: Buffer.from('file name,caption\nmatrix.png,A harbour plate\n'), actorId: null, maxRows: 10 });
   return { collectionId, importId: preview.id };
+}
+
+
+/** review desk: an item with a proposal, in a collection with a form and a subject */
+async function reviewScene(opts: { scan?: boolean; confirmed?: boolean } = {}): Promise<{ collectionId: number; itemId: number; version: number; subjectId: number; formId: number }> {
+  const itemId = opts.scan ? await ingestedItem() : (await makeItem(await makeCollection(), { state: 'suggested' })).id;
+  const item = (await Item.findByPk(itemId))!;
+  const c = (await Collection.findByPk(item.collectionId))!;
+  const subject = await makeSubject(c, { prefLabel: `matrix subject ${++shade}` });
+  const form = await makeSubject(c, { prefLabel: `matrix form ${++shade}`, kind: 'form' });
+  await makeSuggestion(item, subject, opts.confirmed ? 'accepted' : 'proposed');
+  return { collectionId: c.id, itemId, version: (await Item.findByPk(itemId))!.version, subjectId: subject.id, formId: form.id };
+}
+/** an item of a collection that reviews every item twice, approved by someone else */
+async function approvedForSecondReview(): Promise<{ itemId: number; subjectId: number }> {
+  const s = await reviewScene();
+  await sequelize.query('INSERT INTO review_settings (collection_id, double_review_share) VALUES (:id, 1)', { replacements: { id: s.collectionId } });
+  const first = await makePerson('editor');
+  await Item.update({ state: 'approved', approvedBy: first.id, approvedAt: new Date(), altText: 'Engraving of a pier' }, { where: { id: s.itemId } });
+  return { itemId: s.itemId, subjectId: s.subjectId };
 }
 
 /**
@@ -115,6 +142,36 @@ const samples: Record<string, () => Promise<Sample>> = {
   'get /api/subjects/:id/preview': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/preview` }),
   'post /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models`, body: { mode: 'from-examples' } }),
   'get /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models` }),
+  // subject studio: collection settings, the vocabulary tree, the threshold estimate, vocabulary exchange
+  'get /api/collections/archived': async () => ({}),
+  'post /api/collections': async () => ({ body: { name: 'Matrix plates', slug: `matrix-${++shade}`, description: '', medium: 'engraving', altTextLanguage: 'en', altTextMaxLength: 125, houseStyle: '' } }),
+  'get /api/collections/:id': async () => ({ path: `/api/collections/${(await makeCollection()).id}` }),
+  'put /api/collections/:id': async () => {
+    const c = await makeCollection();
+    return { path: `/api/collections/${c.id}`, body: { name: c.name, slug: c.slug, description: '', medium: 'engraving', altTextLanguage: 'en', altTextMaxLength: 125, houseStyle: '', feedingSubjectIds: [], updatedAt: c.updatedAt.toISOString() } };
+  },
+  'post /api/collections/:id/archive': async () => ({ path: `/api/collections/${(await makeCollection()).id}/archive` }),
+  'post /api/collections/:id/restore': async () => ({ path: `/api/collections/${(await makeCollection({ archivedAt: new Date() })).id}/restore` }),
+  'post /api/collections/:id/subjects': async () => ({
+    path: `/api/collections/${(await makeCollection()).id}/subjects`,
+    body: { prefLabel: 'bollard', altLabels: [], kind: 'subject', broaderId: null, notation: '', scopeNote: '', altTextPhrase: '', status: 'draft', feedsAltText: true, conceptUri: '' },
+  }),
+  'put /api/subjects/:id': async () => {
+    const s = await makeSubject(await makeCollection());
+    return { path: `/api/subjects/${s.id}`, body: { prefLabel: 'bollard', altLabels: [], kind: 'subject', broaderId: null, notation: '', scopeNote: '', altTextPhrase: '', status: 'active', feedsAltText: true, conceptUri: '', version: s.version } };
+  },
+  'post /api/subjects/:id/move': async () => {
+    const c = await makeCollection();
+    const top = await makeSubject(c);
+    const s = await makeSubject(c);
+    return { path: `/api/subjects/${s.id}/move`, body: { broaderId: top.id, version: s.version } };
+  },
+  'get /api/subjects/:id/estimate': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/estimate` }),
+  'get /api/collections/:id/vocabulary': async () => ({ path: `/api/collections/${(await makeCollection()).id}/vocabulary?format=turtle` }),
+  'post /api/collections/:id/vocabulary': async () => ({
+    path: `/api/collections/${(await makeCollection()).id}/vocabulary`,
+    files: [{ field: 'file', name: 'vocabulary.csv', data: Buffer.from('prefLabel,broader\nquay,\ncrane,quay\n') }],
+  }),
   'get /api/people': async () => ({}),
   'post /api/people/invitations': async () => ({ body: { email: `invitee${Math.random().toString(36).slice(2)}@people.example`, displayName: 'Invitee', role: 'editor' } }),
   'patch /api/people/:id': async () => {
@@ -151,6 +208,63 @@ const samples: Record<string, () => Promise<Sample>> = {
     const [latest] = await listMessages(config.mailDir);
     return { path: `/api/mailbox/${latest!.id}` };
   },
+  // ledger and exports
+  'get /api/collections/:id/exports': async () => ({ path: `/api/collections/${(await makeCollection()).id}/exports` }),
+  'post /api/collections/:id/exports': async () => ({ path: `/api/collections/${(await makeCollection()).id}/exports`, body: { kind: 'items_csv', periodFrom: '2026-11-23', periodTo: '2026-11-29' } }),
+  'get /api/exports/:id': async () => ({ path: `/api/exports/${(await readyExport()).id}` }),
+  'get /api/exports/:id/file': async () => ({ path: `/api/exports/${(await readyExport()).id}/file` }),
+  'get /api/collections/:id/ledger-mail': async () => ({ path: `/api/collections/${(await makeCollection()).id}/ledger-mail` }),
+  'put /api/collections/:id/ledger-mail': async () => ({ path: `/api/collections/${(await makeCollection()).id}/ledger-mail`, body: { enabled: true, weekday: 1, hour: 7 } }),
+  'get /api/iiif/collections/:id/manifest': async () => ({ path: `/api/iiif/collections/${(await Item.findByPk(await ingestedItem()))!.collectionId}/manifest` }),
+  'get /api/iiif/items/:id/:part': async () => ({ path: `/api/iiif/items/${await ingestedItem()}/canvas` }),
+  'get /api/dashboard/coverage': async () => ({ path: '/api/dashboard/coverage?weeks=8' }),
+  'get /api/collections/:id/dashboard': async () => ({ path: `/api/collections/${(await makeCollection()).id}/dashboard` }),
+  // review desk and catalogue
+  'get /api/review/queue': async () => ({ path: `/api/review/queue?collectionId=${(await reviewScene()).collectionId}` }),
+  'get /api/review/items/:id': async () => ({ path: `/api/review/items/${(await reviewScene()).itemId}` }),
+  'post /api/review/items/:id/subjects': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/items/${s.itemId}/subjects`, body: { version: s.version, subjectId: s.subjectId, decision: 'accept' } };
+  },
+  'put /api/review/items/:id/form': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/items/${s.itemId}/form`, body: { version: s.version, subjectId: s.formId } };
+  },
+  'put /api/review/items/:id/description': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/items/${s.itemId}/description`, body: { version: s.version, altText: 'Engraving of a pier', longDescription: '', decorative: false } };
+  },
+  'post /api/review/items/:id/approve': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/items/${s.itemId}/approve`, body: { version: s.version, altText: 'Engraving of a pier at low tide', longDescription: '', decorative: false } };
+  },
+  'post /api/review/items/:id/skip': async () => ({ path: `/api/review/items/${(await reviewScene()).itemId}/skip` }),
+  'put /api/review/items/:id/caption-flag': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/items/${s.itemId}/caption-flag`, body: { version: s.version, flagged: true, note: 'Outdated term.' } };
+  },
+  'post /api/review/items/:id/examples': async () => {
+    const s = await reviewScene({ scan: true, confirmed: true });
+    return { path: `/api/review/items/${s.itemId}/examples`, body: { subjectId: s.subjectId } };
+  },
+  'post /api/review/items/:id/ocr': async () => ({ path: `/api/review/items/${(await reviewScene({ scan: true })).itemId}/ocr` }),
+  'post /api/review/items/:id/second-review': async () => {
+    const s = await approvedForSecondReview();
+    return { path: `/api/review/items/${s.itemId}/second-review`, body: { present: [s.subjectId], absent: [] } };
+  },
+  'get /api/review/subjects': async () => ({ path: `/api/review/subjects?collectionId=${(await reviewScene()).collectionId}&q=matrix` }),
+  'get /api/review/subjects/:id/grid': async () => ({ path: `/api/review/subjects/${(await reviewScene()).subjectId}/grid` }),
+  'post /api/review/subjects/:id/grid': async () => {
+    const s = await reviewScene();
+    return { path: `/api/review/subjects/${s.subjectId}/grid`, body: { decisions: [{ itemId: s.itemId, version: s.version, decision: 'reject' }] } };
+  },
+  'get /api/review/collections/:id/second-reviews': async () => ({ path: `/api/review/collections/${(await reviewScene()).collectionId}/second-reviews` }),
+  'get /api/review/collections/:id/settings': async () => ({ path: `/api/review/collections/${(await makeCollection()).id}/settings` }),
+  'put /api/review/collections/:id/settings': async () => ({ path: `/api/review/collections/${(await makeCollection()).id}/settings`, body: { doubleReviewShare: 0.2 } }),
+  'get /api/review/collections/:id/agreement': async () => ({ path: `/api/review/collections/${(await reviewScene()).collectionId}/agreement` }),
+  'get /api/items': async () => ({ path: `/api/items?collectionId=${(await reviewScene()).collectionId}&q=matrix` }),
+  'get /api/items/facets': async () => ({ path: `/api/items/facets?collectionId=${(await reviewScene()).collectionId}` }),
+  'get /api/items/:id': async () => ({ path: `/api/items/${(await reviewScene()).itemId}` }),
 };
 
 const key = (r: RouteRecord) => `${r.method} ${r.path}`;
@@ -215,6 +329,7 @@ describe('the permission matrix, enforced on every API route', () => {
         if (!ok) wrong.push(`${key(route)}: expected ${want}, got ${res.status} ${JSON.stringify(res.body).slice(0, 200)}`);
       }
       expect(wrong, results.join('\n')).toEqual([]);
-    });
+      // every route signs in afresh (argon2id each time), so a role takes a while on a loaded machine
+    }, 240_000);
   }
 });

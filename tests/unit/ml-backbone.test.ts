@@ -12,8 +12,9 @@ import {
   CENTERNET_FEATURE_NODE,
   createEmbedder,
   defaultEmbedderConfig,
-  DEFAULT_EMBEDDER_ID,
+  embedderStatus,
   mirrorAverage,
+  TFJS_EMBEDDER_ID,
   type Embedder,
 } from '../../server/src/ml/backbone/embedder.ts';
 import { makeSpatialDimsDynamic, readModelArtifacts } from '../../server/src/ml/backbone/model-files.ts';
@@ -58,7 +59,8 @@ beforeAll(async () => {
     socketCalls.push(JSON.stringify(args[0]));
     throw new Error('network disabled in this test');
   } as typeof net.Socket.prototype.connect;
-  embedder = await createEmbedder();
+  // this file is about the TF.js path of the backbone; tests/unit/onnx-embedder.test.ts covers the ONNX one
+  embedder = await createEmbedder(defaultEmbedderConfig());
 }, 60_000);
 
 afterAll(() => {
@@ -67,10 +69,11 @@ afterAll(() => {
   net.Socket.prototype.connect = realConnect;
 });
 
-describe('the default backbone (CenterNet MobileNetV3 from @vladmandic/human)', () => {
+describe('the built-in backbone on TF.js (CenterNet MobileNetV3 from @vladmandic/human)', () => {
   it('loads from node_modules with the network disabled: no fetch, no socket', SLOW, async () => {
-    expect(embedder.id).toBe(DEFAULT_EMBEDDER_ID);
+    expect(embedder.id).toBe(TFJS_EMBEDDER_ID);
     expect(embedder.id).toBe('centernet-mnv3-b14-ap-mp-320@1');
+    expect(embedderStatus(embedder)).toMatchObject({ runtime: 'tfjs', fallbackReason: null });
     expect(embedder.dimension).toBe(240);
     expect(embedder.layout.blocks).toEqual([120, 120]);
     const [f] = await embedder.embed([tower]);
@@ -88,7 +91,7 @@ describe('the default backbone (CenterNet MobileNetV3 from @vladmandic/human)', 
 
   it('gives the same feature from a fresh embedder instance (to 1e-5)', SLOW, async () => {
     const [a] = await embedder.embed([tower]);
-    const fresh = await createEmbedder();
+    const fresh = await createEmbedder(defaultEmbedderConfig());
     try {
       const [b] = await fresh.embed([tower]);
       expect(maxAbsDiff(a!, b!)).toBeLessThanOrEqual(1e-5);
@@ -99,7 +102,7 @@ describe('the default backbone (CenterNet MobileNetV3 from @vladmandic/human)', 
 
   it('gives the same feature inside a worker thread, with its own TF.js and wasm instance (to 1e-5)', SLOW, async () => {
     const [a] = await embedder.embed([tower]);
-    const worker = await WorkerEmbedder.start();
+    const worker = await WorkerEmbedder.start(defaultEmbedderConfig());
     try {
       expect(worker.id).toBe(embedder.id);
       const [b] = await worker.embed([tower]);
@@ -123,8 +126,8 @@ describe('the default backbone (CenterNet MobileNetV3 from @vladmandic/human)', 
       script,
       `import { readFileSync } from 'node:fs';
 globalThis.fetch = () => { throw new Error('network disabled'); };
-const { createEmbedder } = await import(${JSON.stringify(embedderModule)});
-const e = await createEmbedder();
+const { createEmbedder, defaultEmbedderConfig } = await import(${JSON.stringify(embedderModule)});
+const e = await createEmbedder(defaultEmbedderConfig());
 const [f] = await e.embed([readFileSync(${JSON.stringify(image)})]);
 process.stdout.write(JSON.stringify(Array.from(f)));
 e.dispose();
@@ -263,8 +266,8 @@ describe('configured embedders', () => {
     }
   });
 
-  it('says plainly that the onnx kind needs onnxruntime-node (not a dependency yet)', async () => {
-    await expect(createEmbedder({ kind: 'onnx', modelPath: '/nowhere.onnx', inputName: 'x', outputName: 'y', inputSize: 320, id: 'site-model@1' })).rejects.toThrow(/onnxruntime-node/);
+  it('says plainly when a configured ONNX model file is missing', async () => {
+    await expect(createEmbedder({ kind: 'onnx', modelPath: '/nowhere.onnx', inputName: 'x', outputName: 'y', inputSize: 320, id: 'site-model@1' })).rejects.toThrow(/\/nowhere\.onnx does not exist/);
   });
 
   it('rejects an impossible configuration', async () => {

@@ -29,6 +29,43 @@ export const queryKeys = {
     run: (runId: number) => [...queryKeys.runs.all, 'run', runId] as const,
     schedule: (collectionId: number) => [...queryKeys.runs.all, 'schedule', collectionId] as const,
   },
+  review: {
+    all: ['review'] as const,
+    queue: (filters: Record<string, unknown>) => [...queryKeys.review.all, 'queue', filters] as const,
+    item: (itemId: number, blind: boolean) => [...queryKeys.review.all, 'item', itemId, blind] as const,
+    subjects: (collectionId: number, q: string, kind: string) => [...queryKeys.review.all, 'subjects', collectionId, q, kind] as const,
+    grid: (subjectId: number) => [...queryKeys.review.all, 'grid', subjectId] as const,
+    secondReviews: (collectionId: number) => [...queryKeys.review.all, 'second-reviews', collectionId] as const,
+    settings: (collectionId: number) => [...queryKeys.review.all, 'settings', collectionId] as const,
+    agreement: (collectionId: number) => [...queryKeys.review.all, 'agreement', collectionId] as const,
+  },
+  items: {
+    all: ['items'] as const,
+    search: (filters: Record<string, unknown>) => [...queryKeys.items.all, 'search', filters] as const,
+    facets: (collectionId: number) => [...queryKeys.items.all, 'facets', collectionId] as const,
+    record: (itemId: number) => [...queryKeys.items.all, 'record', itemId] as const,
+  },
+  /** The subject studio: a collection's vocabulary, one subject, its preview, estimate and models. */
+  studio: {
+    all: ['studio'] as const,
+    subjects: (collectionId: number) => [...queryKeys.studio.all, 'subjects', collectionId] as const,
+    subject: (subjectId: number) => [...queryKeys.studio.all, 'subject', subjectId] as const,
+    preview: (subjectId: number, minZ: number) => [...queryKeys.studio.all, 'preview', subjectId, minZ] as const,
+    estimate: (subjectId: number, minZ: number) => [...queryKeys.studio.all, 'estimate', subjectId, minZ] as const,
+    models: (subjectId: number) => [...queryKeys.studio.all, 'models', subjectId] as const,
+    collection: (collectionId: number) => [...queryKeys.studio.all, 'collection', collectionId] as const,
+    archived: () => [...queryKeys.studio.all, 'archived-collections'] as const,
+  },
+  dashboard: {
+    all: ['dashboard'] as const,
+    coverage: (weeks: number) => [...queryKeys.dashboard.all, 'coverage', weeks] as const,
+    collection: (collectionId: number, weeks: number) => [...queryKeys.dashboard.all, 'collection', collectionId, weeks] as const,
+  },
+  exports: {
+    all: ['exports'] as const,
+    list: (collectionId: number) => [...queryKeys.exports.all, 'list', collectionId] as const,
+    mail: (collectionId: number) => [...queryKeys.exports.all, 'mail', collectionId] as const,
+  },
   mailbox: {
     all: ['mailbox'] as const,
     list: () => [...queryKeys.mailbox.all, 'list'] as const,

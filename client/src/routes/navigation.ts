@@ -13,11 +13,12 @@ export interface NavEntry {
 
 export const navEntries: readonly NavEntry[] = [
   { label: 'Overview', path: '/', available: true },
-  { label: 'Review desk', path: '/review', available: false, permission: 'review:write' },
-  { label: 'Subjects', path: '/subjects', available: false, permission: 'subjects:write' },
+  { label: 'Review desk', path: '/review', available: true, permission: 'review:write' },
+  { label: 'Catalogue', path: '/catalogue', available: true, permission: 'collections:read' },
+  { label: 'Subjects', path: '/subjects', available: true, permission: 'subjects:write' },
   { label: 'Intake', path: '/intake', available: true, permission: 'items:import' },
   { label: 'Night shift', path: '/night-shift', available: true, permission: 'collections:read' },
-  { label: 'Ledger', path: '/ledger', available: false, permission: 'exports:read' },
+  { label: 'Ledger', path: '/ledger', available: true, permission: 'exports:read' },
   { label: 'People', path: '/people', available: true, permission: 'people:manage' },
   { label: 'Mailbox', path: '/mailbox', available: true, permission: 'mailbox:read', needsMailbox: true },
 ];

@@ -3,6 +3,9 @@ import { createBrowserRouter } from 'react-router';
 import { AppLayout, type RouteHandle } from './app-layout';
 import { loadSession, redirectSignedIn, requireSignIn } from './guards';
 import { IntakeRoute } from './intake';
+import { LedgerRoute } from './ledger';
+import { CatalogueRoute } from './catalogue';
+import { ItemRecordRoute } from './item-record';
 import { MailboxRoute } from './mailbox';
 import { NightShiftRoute } from './night-shift';
 import { NotFoundRoute } from './not-found';
@@ -10,10 +13,15 @@ import { OverviewRoute } from './overview';
 import { PeopleRoute } from './people';
 import { RequirePermission } from './require-permission';
 import { ResetPasswordRoute } from './reset-password';
+import { ReviewRoute } from './review';
 import { RootErrorPage, RouteErrorPanel } from './route-error';
 import { SetPasswordRoute } from './set-password';
 import { SignInRoute } from './sign-in';
 import { SignedInArea } from './signed-in-area';
+import { SubjectsRoute } from './subjects';
+import { SubjectRoute } from './subjects-subject';
+import { CollectionsRoute } from './collections';
+import { CollectionSettingsRoute } from './collections-settings';
 import { StartingUp } from './starting-up';
 
 const centred: RouteHandle = { centred: true };
@@ -63,10 +71,74 @@ export function createRouter(queryClient: QueryClient) {
                   ),
                 },
                 {
+                  path: 'subjects',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Subjects">
+                      <SubjectsRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'subjects/:subjectId',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Subjects">
+                      <SubjectRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'collections',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Collections">
+                      <CollectionsRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'collections/:collectionId',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Collections">
+                      <CollectionSettingsRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
                   path: 'night-shift',
                   element: (
                     <RequirePermission permission="collections:read" screen="Night shift">
                       <NightShiftRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'review',
+                  element: (
+                    <RequirePermission permission="review:write" screen="Review desk">
+                      <ReviewRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'catalogue',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Catalogue">
+                      <CatalogueRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'catalogue/items/:id',
+                  element: (
+                    <RequirePermission permission="collections:read" screen="Catalogue">
+                      <ItemRecordRoute />
+                    </RequirePermission>
+                  ),
+                },
+                {
+                  path: 'ledger',
+                  element: (
+                    <RequirePermission permission="exports:read" screen="Ledger">
+                      <LedgerRoute />
                     </RequirePermission>
                   ),
                 },

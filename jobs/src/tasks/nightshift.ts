@@ -4,12 +4,16 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import type { AppConfig } from '../../../server/src/config.ts';
 import { logger } from '../../../server/src/logger.ts';
 import { createMailer, type Mailer } from '../../../server/src/mail/mailer.ts';
-import { Collection, Run, User } from '../../../server/src/models/index.ts';
+import { Collection, Embedding, Run, User } from '../../../server/src/models/index.ts';
 import { storeEmbedding } from '../../../server/src/services/features.ts';
 import { ingestFile, intakeLimits } from '../../../server/src/services/ingest.ts';
+import { ocrPendingItems } from '../../../server/src/services/ocr.ts';
+import { EmbedFeeder, inLanes } from '../../../server/src/services/ingest/pipeline.ts';
+import { featureToBuffer } from '../../../server/src/ml/index.ts';
 import { emptyCounts, emptyReport, STAGES, type RunCounts, type RunReport, type Stage } from '../../../server/src/services/runs.ts';
 import { Storage } from '../../../server/src/services/storage.ts';
 import { retrainCollection, suggestForCollection } from '../../../server/src/services/suggest.ts';
+import type { WeightMapSettings } from '../../../server/src/services/weight-maps.ts';
 import type { EmbeddingPool } from '../embed-pool.ts';
 import type { TaskHandler } from '../worker.ts';
 
@@ -18,6 +22,8 @@ export interface NightShiftDeps {
   /** the embedding pool, started on first use and kept for the worker's life */
   pool: () => Promise<EmbeddingPool>;
   mailer?: Mailer;
+  /** overrides of the weight map's training settings (tuning, tests); the defaults are the measured ones */
+  regressorSettings?: Partial<WeightMapSettings>;
 }
 
 class Cancelled extends Error {}
@@ -26,11 +32,52 @@ class Cancelled extends Error {}
 export const DROP_DONE = 'processed';
 export const DROP_REJECTED = 'rejected';
 
+/** Drop-folder files ingested at once (each decode runs on one of libuv's threads). */
+export function ingestLanes(env: NodeJS.ProcessEnv = process.env): number {
+  const raw = env.CARTOUCHE_INGEST_LANES;
+  if (raw === undefined || raw === '') return 2;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 1 || n > 16) throw new Error(`CARTOUCHE_INGEST_LANES must be a whole number from 1 to 16, got "${raw}"`);
+  return n;
+}
+
+/** What every stage of a run works with. */
+interface RunContext {
+  sequelize: Sequelize;
+  storage: Storage;
+  deps: NightShiftDeps;
+  mailer: Mailer;
+  collection: Collection;
+  runId: number;
+  report: RunReport;
+  counts: RunCounts;
+  shouldStop: () => Promise<boolean>;
+  stage: (stage: Stage) => StageRunner;
+}
+
+type StageHandler = (ctx: RunContext, s: StageRunner) => Promise<void>;
+
 /**
- * One night-shift run: ingest (drop folder) → embed → suggest → retrain → digest. Each stage is idempotent
- * and records when it is done, so a run taken over after its worker died (lease expired) skips the stages
- * that finished and redoes at most the batch that was in flight — with no duplicate item or suggestion,
- * because items are keyed by content hash and suggestions by (item, subject).
+ * The stages, in the order of STAGES (services/runs.ts). A new stage — text in images (OCR) between embed and
+ * retrain, say — is a name added to STAGES and a handler here; the type makes both go together. Every handler
+ * must be idempotent: a run taken over after its worker died calls it again from the start.
+ */
+const STAGE_HANDLERS: Record<Stage, StageHandler> = {
+  ingest: ingestStage,
+  embed: embedStage,
+  text: textStage,
+  retrain: retrainStage,
+  suggest: suggestStage,
+  digest: digestStage,
+};
+
+/**
+ * One night-shift run: ingest (drop folder, with embedding overlapping it) → embed (whatever is still without a
+ * feature) → retrain (the weight map, then the subject models) → suggest → digest. Each stage is idempotent and
+ * records when it is done, so a run taken over after its worker died (lease expired) skips the stages that
+ * finished and redoes at most the batch that was in flight — with no duplicate item or suggestion, because
+ * items are keyed by content hash, features by (owner, embedder), weight maps by their inputs' fingerprint and
+ * suggestions by (item, subject).
  */
 export function nightShiftTask(deps: NightShiftDeps): TaskHandler {
   const storage = new Storage(deps.config.storageDir);
@@ -53,10 +100,21 @@ export function nightShiftTask(deps: NightShiftDeps): TaskHandler {
       lastSave = Date.now();
       await Run.update({ report: report as unknown as Record<string, unknown>, counts }, { where: { id: runId } });
     };
-    const shouldStop = async () => (await Run.findByPk(runId, { attributes: ['status'] }))?.status === 'cancelled';
+    // asked often (per file, per batch): the answer is kept for half a second
+    let stopAsked = 0;
+    let stopAnswer: Promise<boolean> = Promise.resolve(false);
+    const shouldStop = () => {
+      if (Date.now() - stopAsked > 500) {
+        stopAsked = Date.now();
+        stopAnswer = Run.findByPk(runId, { attributes: ['status'] }).then((r) => r?.status === 'cancelled');
+      }
+      return stopAnswer;
+    };
     const stageRunner = (stage: Stage): StageRunner => ({
       begin: async (total: number | null) => {
-        Object.assign(report.stages[stage], { state: 'running', total, done: 0, startedAt: report.stages[stage].startedAt ?? new Date().toISOString() });
+        const r = report.stages[stage];
+        // a stage already running (overlapping the one before, or taken over) keeps its count
+        Object.assign(r, { state: 'running', total, done: r.state === 'running' ? r.done : 0, startedAt: r.startedAt ?? new Date().toISOString() });
         await save(true);
       },
       progress: async (done: number, total?: number) => {
@@ -69,34 +127,13 @@ export function nightShiftTask(deps: NightShiftDeps): TaskHandler {
         await save(true);
       },
     });
+    const ctx: RunContext = { sequelize, storage, deps, mailer, collection, runId, report, counts, shouldStop, stage: stageRunner };
 
     try {
       for (const stage of STAGES) {
         if (report.stages[stage].state === 'done' || report.stages[stage].state === 'skipped') continue;
         if (await shouldStop()) throw new Cancelled();
-        const s = stageRunner(stage);
-        if (stage === 'ingest') await ingestStage(sequelize, storage, collection, report, counts, s, shouldStop);
-        if (stage === 'embed') await embedStage(sequelize, storage, deps, collection, counts, s, shouldStop);
-        if (stage === 'suggest') {
-          const pool = await deps.pool();
-          await s.begin(null);
-          const r = await suggestForCollection(sequelize, pool.embedder, collection.id, { runId, onProgress: (d, t) => s.progress(d, t), shouldStop });
-          counts.suggested = r.proposed;
-          await s.end(r.subjects === 0 ? 'skipped' : 'done', r.subjects === 0 ? 'no active subject model yet' : undefined);
-        }
-        if (stage === 'retrain') {
-          const pool = await deps.pool();
-          await s.begin(null);
-          const r = await retrainCollection(sequelize, pool.embedder, collection.id, { onProgress: (d, t) => s.progress(d, t), shouldStop });
-          counts.retrained = r.retrained;
-          for (const f of r.failed) report.errors.push({ at: new Date().toISOString(), message: `subject ${f.subjectId}: ${f.reason}` });
-          await s.end();
-        }
-        if (stage === 'digest') {
-          await s.begin(null);
-          const sent = await sendDigest(sequelize, mailer, deps.config, collection, counts);
-          await s.end('done', `sent to ${sent} editor(s)`);
-        }
+        await STAGE_HANDLERS[stage](ctx, stageRunner(stage));
         if (await shouldStop()) throw new Cancelled();
       }
       await Run.update({ status: 'succeeded', finishedAt: new Date(), report: report as unknown as Record<string, unknown>, counts }, { where: { id: runId, status: 'running' } });
@@ -124,7 +161,24 @@ interface StageRunner {
   end(state?: 'done' | 'skipped', note?: string): Promise<void>;
 }
 
-async function ingestStage(sequelize: Sequelize, storage: Storage, collection: Collection, report: RunReport, counts: RunCounts, s: StageRunner, shouldStop: () => Promise<boolean>): Promise<void> {
+/** Stores a finished batch of item features in one statement (a rerun replaces, never duplicates). */
+async function storeItemFeatures(embedderId: string, batch: ReadonlyArray<{ id: number; feature: Float32Array }>): Promise<void> {
+  if (batch.length === 0) return;
+  await Embedding.bulkCreate(
+    batch.map(({ id, feature }) => ({ ownerType: 'item' as const, ownerId: id, embedderId, dimension: feature.length, vector: featureToBuffer(feature) })),
+    { updateOnDuplicate: ['dimension', 'vector', 'updatedAt'] },
+  );
+}
+
+/**
+ * Ingests the drop folder, a few files at once, and embeds each new scan as soon as it is in: the small
+ * embedding input made from the one decode at intake goes straight to the pool, which works while the next
+ * files are decoded. One bad file is refused with its reason and moved aside; the others go on. A failed
+ * hand-over to the pool does not stop intake: those items stay without a feature and the embed stage takes
+ * them up again.
+ */
+async function ingestStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  const { sequelize, storage, collection, report, counts, shouldStop } = ctx;
   const folder = collection.dropFolder;
   if (!folder) return s.end('skipped', 'no drop folder set');
   let names: string[];
@@ -134,22 +188,51 @@ async function ingestStage(sequelize: Sequelize, storage: Storage, collection: C
     return s.end('skipped', `drop folder not readable: ${(err as Error).message}`);
   }
   await s.begin(names.length);
+  const pool = await ctx.deps.pool();
+  const embed = ctx.stage('embed');
+  await embed.begin(null);
+  let embedded = report.stages.embed.done;
+  const feeder = new EmbedFeeder<{ id: number; input: Buffer }>(
+    pool,
+    async (job) => job.input,
+    async (batch) => {
+      await storeItemFeatures(pool.embedder.id, batch.map(({ job, feature }) => ({ id: job.id, feature })));
+      embedded += batch.length;
+      counts.embedded += batch.length;
+      await embed.progress(embedded);
+    },
+    { shouldStop },
+  );
   const deps = { sequelize, storage, limits: intakeLimits() };
-  for (const [i, name] of names.entries()) {
-    if (await shouldStop()) return;
-    const path = join(folder, name);
-    const outcome = await ingestFile(deps, { collectionId: collection.id, fileName: name, source: { path }, origin: 'drop-folder' });
-    if (outcome.outcome === 'rejected') {
-      counts.rejected++;
-      report.rejected.push({ fileName: name, reason: outcome.reason });
-      await moveAside(folder, DROP_REJECTED, name, outcome.reason);
-    } else {
-      if (outcome.outcome === 'ingested') counts.ingested++;
-      else counts.duplicates++;
-      await moveAside(folder, DROP_DONE, name);
-    }
-    await s.progress(i + 1);
+  let done = 0;
+  try {
+    await inLanes(
+      names,
+      ingestLanes(),
+      async (name) => {
+        const path = join(folder, name);
+        const outcome = await ingestFile(deps, { collectionId: collection.id, fileName: name, source: { path }, origin: 'drop-folder', embedInput: true });
+        if (outcome.outcome === 'rejected') {
+          counts.rejected++;
+          report.rejected.push({ fileName: name, reason: outcome.reason });
+          await moveAside(folder, DROP_REJECTED, name, outcome.reason);
+        } else {
+          if (outcome.outcome === 'ingested') {
+            counts.ingested++;
+            if (outcome.embedInput) await feeder.push({ id: outcome.itemId, input: outcome.embedInput });
+          } else counts.duplicates++;
+          await moveAside(folder, DROP_DONE, name);
+        }
+        await s.progress(++done);
+      },
+      shouldStop,
+    );
+  } finally {
+    await feeder.finish().catch((err: unknown) => {
+      report.errors.push({ at: new Date().toISOString(), message: `embedding during intake: ${(err as Error).message}; the embed stage takes those scans up again` });
+    });
   }
+  if (await shouldStop()) return;
   await s.end();
 }
 
@@ -170,8 +253,14 @@ async function exists(p: string): Promise<boolean> {
   );
 }
 
-async function embedStage(sequelize: Sequelize, storage: Storage, deps: NightShiftDeps, collection: Collection, counts: RunCounts, s: StageRunner, shouldStop: () => Promise<boolean>): Promise<void> {
-  const pool = await deps.pool();
+/**
+ * Embeds whatever of the collection still has no feature from the current embedder: examples (drawn, uploaded
+ * or promoted), scans that came in by upload, and scans a previous attempt ingested but did not embed. Scans
+ * are read from their review-size image (already upright, and small enough to decode fast).
+ */
+async function embedStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  const { sequelize, storage, collection, counts, shouldStop } = ctx;
+  const pool = await ctx.deps.pool();
   const todo = await sequelize.query<{ id: number; file_key: string | null; view_key: string | null }>(
     `SELECT i.id, i.file_key, i.view_key FROM items i
       WHERE i.collection_id = :collectionId AND i.file_key IS NOT NULL
@@ -179,7 +268,6 @@ async function embedStage(sequelize: Sequelize, storage: Storage, deps: NightShi
       ORDER BY i.id`,
     { type: QueryTypes.SELECT, replacements: { collectionId: collection.id, embedderId: pool.embedder.id } },
   );
-  // examples (drawn, uploaded or promoted) that have no feature from this embedder yet
   const examples = await sequelize.query<{ id: number; file_key: string }>(
     `SELECT x.id, x.file_key FROM examples x JOIN subjects s ON s.id = x.subject_id
       WHERE s.collection_id = :collectionId
@@ -187,8 +275,9 @@ async function embedStage(sequelize: Sequelize, storage: Storage, deps: NightShi
       ORDER BY x.id`,
     { type: QueryTypes.SELECT, replacements: { collectionId: collection.id, embedderId: pool.embedder.id } },
   );
-  await s.begin(todo.length + examples.length);
-  let done = 0;
+  const before = ctx.report.stages.embed.state === 'running' ? ctx.report.stages.embed.done : 0;
+  await s.begin(before + todo.length + examples.length);
+  let done = before;
   for (let i = 0; i < examples.length; i += 8) {
     const slice = examples.slice(i, i + 8);
     const features = await pool.embedExamples(await Promise.all(slice.map((x) => readFile(storage.pathOf(x.file_key)))));
@@ -198,17 +287,70 @@ async function embedStage(sequelize: Sequelize, storage: Storage, deps: NightShi
   }
   await pool.embedAll(
     todo,
-    // the review-size derivative is already oriented and small: decoding it is far cheaper than the scan
     (row) => readFile(storage.pathOf(row.view_key ?? row.file_key!)),
     async (batch) => {
-      for (const { job, feature } of batch) await storeEmbedding({ type: 'item', id: job.id }, pool.embedder.id, feature);
+      await storeItemFeatures(pool.embedder.id, batch.map(({ job, feature }) => ({ id: job.id, feature })));
       done += batch.length;
       counts.embedded += batch.length;
       await s.progress(done);
     },
     { shouldStop },
   );
+  if (await shouldStop()) return;
   await s.end();
+}
+
+/** The weight map first (only when the decisions about its training subjects changed), then the subject models. */
+/**
+ * Text in the images (OCR, English): read once per item and engine, offered to editors at the desk and checked
+ * against the alt text there. Opt-in for now (`CARTOUCHE_NIGHTSHIFT_OCR=on`): about 2 s a scan on one core.
+ */
+async function textStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  if (process.env.CARTOUCHE_NIGHTSHIFT_OCR !== 'on') {
+    await s.end('skipped', 'text reading is off (set CARTOUCHE_NIGHTSHIFT_OCR=on)');
+    return;
+  }
+  await s.begin(null);
+  const r = await ocrPendingItems({ sequelize: ctx.sequelize, storage: ctx.storage }, ctx.collection.id, { shouldStop: ctx.shouldStop, onProgress: (d, t) => s.progress(d, t) });
+  ctx.counts.textRead = (ctx.counts.textRead ?? 0) + r.read;
+  for (const f of r.failed) ctx.report.errors.push({ at: new Date().toISOString(), message: `text of ${f.identifier}: ${f.reason}` });
+  if (await ctx.shouldStop()) return;
+  await s.end(r.read === 0 && r.failed.length === 0 ? 'skipped' : 'done', r.read === 0 && r.failed.length === 0 ? 'no item without its text read' : `${r.read} read, ${r.mostlyText} mostly text`);
+}
+
+async function retrainStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  const pool = await ctx.deps.pool();
+  await s.begin(null);
+  const r = await retrainCollection(ctx.sequelize, pool.embedder, ctx.collection.id, { onProgress: (d, t) => s.progress(d, t), shouldStop: ctx.shouldStop, regressorSettings: ctx.deps.regressorSettings });
+  ctx.counts.retrained += r.retrained;
+  if (r.weightMap.status === 'trained') ctx.counts.weightMapsTrained += 1;
+  for (const f of r.failed) ctx.report.errors.push({ at: new Date().toISOString(), message: `subject ${f.subjectId}: ${f.reason}` });
+  if (await ctx.shouldStop()) return;
+  const map =
+    r.weightMap.status === 'trained'
+      ? `weight map version ${r.weightMap.version} trained, ${r.weightMap.chosenVersion === r.weightMap.version ? 'chosen' : 'not chosen'}`
+      : r.weightMap.status === 'unchanged'
+        ? `weight map unchanged${r.weightMap.chosenVersion ? ` (version ${r.weightMap.chosenVersion} in use)` : ''}`
+        : r.weightMap.status === 'withdrawn'
+          ? 'weight map withdrawn: too few training subjects now'
+          : 'no weight map yet: too few subjects with enough confirmed items';
+  await s.end('done', `${r.retrained} model(s) rebuilt; ${map}`);
+}
+
+/** Every active model's ranked list over the items nobody has decided on yet (rerun: the same suggestions). */
+async function suggestStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  const pool = await ctx.deps.pool();
+  await s.begin(null);
+  const r = await suggestForCollection(ctx.sequelize, pool.embedder, ctx.collection.id, { runId: ctx.runId, onProgress: (d, t) => s.progress(d, t), shouldStop: ctx.shouldStop });
+  ctx.counts.suggested = r.proposed;
+  if (await ctx.shouldStop()) return;
+  await s.end(r.subjects === 0 ? 'skipped' : 'done', r.subjects === 0 ? 'no active subject model yet' : undefined);
+}
+
+async function digestStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  await s.begin(null);
+  const sent = await sendDigest(ctx.sequelize, ctx.mailer, ctx.deps.config, ctx.collection, ctx.counts);
+  await s.end('done', `sent to ${sent} editor(s)`);
 }
 
 async function waitingCount(sequelize: Sequelize, collectionId: number): Promise<number> {

@@ -9,6 +9,8 @@ export const PERMISSIONS = [
   'review:write',
   'runs:start',
   'exports:read',
+  /** when the weekly coverage-ledger mail goes to the managers */
+  'exports:schedule',
   'people:manage',
   'mailbox:read',
 ] as const;
@@ -19,7 +21,7 @@ export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
   admin: PERMISSIONS,
   archivist: ['collections:read', 'collections:write', 'subjects:write', 'items:import', 'runs:start', 'review:write', 'exports:read'],
   editor: ['collections:read', 'review:write', 'exports:read'],
-  manager: ['collections:read', 'exports:read'],
+  manager: ['collections:read', 'exports:read', 'exports:schedule'],
 };
 
 export function can(role: Role, permission: Permission): boolean {

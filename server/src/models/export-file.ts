@@ -1,18 +1,30 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
 export const EXPORT_KINDS = ['ledger_xlsx', 'items_csv', 'xmp_zip', 'iiif_manifest'] as const;
+export type ExportKind = (typeof EXPORT_KINDS)[number];
+export const EXPORT_STATUSES = ['queued', 'running', 'ready', 'failed'] as const;
+export type ExportStatus = (typeof EXPORT_STATUSES)[number];
 
 /** A requested export (coverage ledger, CSV, XMP sidecars, IIIF manifest) and the stored file it produced. */
 export class ExportFile extends Model<InferAttributes<ExportFile>, InferCreationAttributes<ExportFile>> {
   declare id: CreationOptional<number>;
   declare collectionId: number | null;
-  declare kind: (typeof EXPORT_KINDS)[number];
+  declare kind: ExportKind;
+  /** first day of the period (inclusive, in the collection's time zone); null: from the beginning */
   declare periodFrom: string | null;
+  /** last day of the period (inclusive); null: up to when the export is built */
   declare periodTo: string | null;
-  declare status: CreationOptional<'queued' | 'running' | 'ready' | 'failed'>;
+  declare status: CreationOptional<ExportStatus>;
   declare fileKey: string | null;
+  declare fileName: CreationOptional<string | null>;
+  declare byteSize: CreationOptional<number | null>;
   declare rowCount: number | null;
   declare requestedBy: number | null;
+  /** the job that builds it (one export per job, so a retried job finds its export again) */
+  declare jobId: CreationOptional<number | null>;
+  declare trigger: CreationOptional<'manual' | 'weekly'>;
+  /** when the weekly ledger mail with this file was sent */
+  declare mailedAt: CreationOptional<Date | null>;
   declare error: string | null;
   declare finishedAt: Date | null;
   declare createdAt: CreationOptional<Date>;
@@ -26,10 +38,15 @@ export class ExportFile extends Model<InferAttributes<ExportFile>, InferCreation
         kind: { type: DataTypes.ENUM(...EXPORT_KINDS), allowNull: false },
         periodFrom: { type: DataTypes.DATEONLY, allowNull: true },
         periodTo: { type: DataTypes.DATEONLY, allowNull: true },
-        status: { type: DataTypes.ENUM('queued', 'running', 'ready', 'failed'), allowNull: false, defaultValue: 'queued' },
+        status: { type: DataTypes.ENUM(...EXPORT_STATUSES), allowNull: false, defaultValue: 'queued' },
         fileKey: { type: DataTypes.CHAR(64), allowNull: true },
+        fileName: { type: DataTypes.STRING(255), allowNull: true },
+        byteSize: { type: DataTypes.BIGINT.UNSIGNED, allowNull: true },
         rowCount: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         requestedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        jobId: { type: DataTypes.BIGINT.UNSIGNED, allowNull: true },
+        trigger: { type: DataTypes.ENUM('manual', 'weekly'), allowNull: false, defaultValue: 'manual' },
+        mailedAt: { type: DataTypes.DATE(3), allowNull: true },
         error: { type: DataTypes.TEXT, allowNull: true },
         finishedAt: { type: DataTypes.DATE(3), allowNull: true },
         createdAt: DataTypes.DATE(3),
@@ -39,3 +56,32 @@ export class ExportFile extends Model<InferAttributes<ExportFile>, InferCreation
     );
   }
 }
+
+/** When the weekly coverage-ledger mail goes to a collection's managers. No row: the defaults below. */
+export class LedgerMailSetting extends Model<InferAttributes<LedgerMailSetting>, InferCreationAttributes<LedgerMailSetting>> {
+  declare collectionId: number;
+  declare enabled: boolean;
+  /** ISO weekday, 1 Monday … 7 Sunday */
+  declare weekday: number;
+  declare hour: number;
+  declare updatedBy: number | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+
+  static initModel(sequelize: Sequelize): void {
+    LedgerMailSetting.init(
+      {
+        collectionId: { type: DataTypes.INTEGER.UNSIGNED, primaryKey: true },
+        enabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+        weekday: { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 1, validate: { min: 1, max: 7 } },
+        hour: { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 7, validate: { min: 0, max: 23 } },
+        updatedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        createdAt: DataTypes.DATE(3),
+        updatedAt: DataTypes.DATE(3),
+      },
+      { sequelize, tableName: 'ledger_mail_settings' },
+    );
+  }
+}
+
+export const LEDGER_MAIL_DEFAULTS = { enabled: true, weekday: 1, hour: 7 } as const;

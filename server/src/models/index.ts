@@ -3,7 +3,7 @@ import { AuditEvent } from './audit-event.ts';
 import { Collection } from './collection.ts';
 import { Embedding } from './embedding.ts';
 import { Example } from './example.ts';
-import { ExportFile } from './export-file.ts';
+import { ExportFile, LedgerMailSetting } from './export-file.ts';
 import { ImportBatch } from './import-batch.ts';
 import { Item } from './item.ts';
 import { Job } from './job.ts';
@@ -14,9 +14,14 @@ import { Suggestion } from './suggestion.ts';
 import { UserToken } from './user-token.ts';
 import { User } from './user.ts';
 import { WorkerHeartbeat } from './worker-heartbeat.ts';
+import { WeightMapVersion } from './weight-map.ts';
+import { ItemTextRead, SecondReview } from './review.ts';
 
 export { AuditEvent, Collection, Embedding, Example, ExportFile, Item, Job, Run, Subject, SubjectModel, Suggestion, User, UserToken, WorkerHeartbeat };
 export { ImportBatch };
+export { WeightMapVersion };
+export { ItemTextRead, SecondReview };
+export { LedgerMailSetting };
 export { ROLES, type Role } from './user.ts';
 
 let initialised: Sequelize | null = null;
@@ -30,6 +35,10 @@ export function initModels(sequelize: Sequelize): void {
     m.initModel(sequelize);
   }
   ImportBatch.initModel(sequelize);
+  ItemTextRead.initModel(sequelize);
+  SecondReview.initModel(sequelize);
+  WeightMapVersion.initModel(sequelize);
+  LedgerMailSetting.initModel(sequelize);
   const fk = (name: string, allowNull = false) => ({ foreignKey: { name, allowNull } });
 
   Collection.hasMany(Subject, { ...fk('collectionId'), as: 'subjects' });
@@ -64,5 +73,9 @@ export function initModels(sequelize: Sequelize): void {
 
   AuditEvent.belongsTo(User, { ...fk('actorId', true), as: 'actor' });
   ExportFile.belongsTo(Collection, { ...fk('collectionId', true), as: 'collection' });
+  ExportFile.belongsTo(User, { ...fk('requestedBy', true), as: 'requester' });
+  LedgerMailSetting.belongsTo(Collection, { ...fk('collectionId'), as: 'collection' });
   ImportBatch.belongsTo(Collection, { ...fk('collectionId'), as: 'collection' });
+  Collection.hasMany(WeightMapVersion, { ...fk('collectionId'), as: 'weightMaps' });
+  WeightMapVersion.belongsTo(Collection, { ...fk('collectionId'), as: 'collection' });
 }

@@ -11,6 +11,9 @@ import { EXAMPLE_MEDIA } from '../models/example.ts';
 import { embedStoredFile, processEmbedder } from '../services/features.ts';
 import { Storage } from '../services/storage.ts';
 import { activeModel, judgedItems, modelHistory, rankedPreview, summarise, synthesizeSubjectModel } from '../services/subject-models.ts';
+import { subjectCreateSchema, subjectMoveSchema, subjectUpdateSchema } from '../../../common/schemas/subject.ts';
+import { estimateAtThreshold } from '../services/subject-studio.ts';
+import { conceptBase, conceptUriOf, createSubject, moveSubject, subjectRecord, updateSubject } from '../services/vocabulary.ts';
 
 const idParam = z.object({ id: z.coerce.number().int().positive() });
 const EXAMPLE_FORMATS = new Set(['jpeg', 'png', 'webp', 'tiff']);
@@ -39,6 +42,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   const storage = new Storage(ctx.config.storageDir);
   const read = needs('collections:read');
   const write = needs('subjects:write');
+  const base = conceptBase(ctx.config.publicUrl);
 
   const subjectOr404 = async (id: number) => {
     const s = await Subject.findByPk(id);
@@ -48,7 +52,8 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
 
   api.route('get', '/collections/:id/subjects', read, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
-    if (!(await Collection.findByPk(id))) throw new HttpProblem(404, 'Not found', 'No such collection.');
+    const collection = await Collection.findByPk(id);
+    if (!collection) throw new HttpProblem(404, 'Not found', 'No such collection.');
     const subjects = await Subject.findAll({ where: { collectionId: id }, order: [['prefLabel', 'ASC']] });
     const examples = await Example.count({ where: { subjectId: subjects.map((s) => s.id) }, group: ['subject_id'] as never });
     const exampleCount = new Map((examples as unknown as Array<{ subject_id?: number; subjectId?: number; count: number }>).map((r) => [Number(r.subject_id ?? r.subjectId), Number(r.count)]));
@@ -63,6 +68,10 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
         status: s.status,
         notation: s.notation,
         altTextPhrase: s.altTextPhrase,
+        altLabels: s.altLabels,
+        feedsAltText: s.feedsAltText,
+        conceptUri: conceptUriOf(s, collection.slug, base),
+        version: s.version,
         examples: exampleCount.get(s.id) ?? 0,
         model: modelOf.get(s.id) ?? null,
       })),
@@ -89,11 +98,43 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
         altTextPhrase: s.altTextPhrase,
         status: s.status,
         version: s.version,
+        feedsAltText: s.feedsAltText,
+        conceptUri: conceptUriOf(s, (await Collection.findByPk(s.collectionId))!.slug, base),
       },
       examples: examples.map(exampleView),
       model: model ? summarise(model) : null,
       judgements: { confirmed: judged.confirmed.length, rejected: judged.rejected.length },
     });
+  });
+
+  api.route('post', '/collections/:id/subjects', write, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const body = parse(subjectCreateSchema, req.body, 'body');
+    const s = await createSubject(ctx.sequelize, id, body, base);
+    res.status(201).json({ subject: subjectRecord(s, (await Collection.findByPk(id))!.slug, base) });
+  });
+
+  /** The whole record from the editor's copy; a copy older than the stored version gets 409. */
+  api.route('put', '/subjects/:id', write, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const body = parse(subjectUpdateSchema, req.body, 'body');
+    const s = await updateSubject(ctx.sequelize, id, body);
+    res.json({ subject: subjectRecord(s, (await Collection.findByPk(s.collectionId))!.slug, base) });
+  });
+
+  /** Re-parents a subject (drag and drop, or "Move under…"); refuses loops and stale copies. */
+  api.route('post', '/subjects/:id/move', write, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const body = parse(subjectMoveSchema, req.body, 'body');
+    const s = await moveSubject(ctx.sequelize, id, body);
+    res.json({ subject: subjectRecord(s, (await Collection.findByPk(s.collectionId))!.slug, base) });
+  });
+
+  /** Estimated precision and recall at a threshold, from the items editors judged; says when there are too few. */
+  api.route('get', '/subjects/:id/estimate', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    const { minZ } = parse(z.object({ minZ: z.coerce.number().min(-10).max(10).default(2) }), req.query, 'query');
+    res.set('Cache-Control', 'no-store').json({ estimate: await estimateAtThreshold(ctx.sequelize, await processEmbedder(), id, minZ) });
   });
 
   api.route('post', '/subjects/:id/examples', write, upload.array('files', 20), async (req, res) => {

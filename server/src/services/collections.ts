@@ -1,4 +1,7 @@
-import { QueryTypes, type Sequelize } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize';
+import type { CollectionCreate, CollectionDetail, CollectionUpdate } from '../../../common/schemas/collection.ts';
+import { HttpProblem } from '../http/problem.ts';
+import { Collection, Subject } from '../models/index.ts';
 
 export interface CollectionSummary {
   id: number;
@@ -58,4 +61,91 @@ export async function listCollectionSummaries(sequelize: Sequelize): Promise<Col
     decorativeCount: Number(r.decorativeCount),
     lastRunAt: r.lastRunAt ? new Date(r.lastRunAt as string).toISOString() : null,
   }));
+}
+
+// ------------------------------------------------------------------ settings: create, edit, archive
+
+
+
+export type { CollectionDetail };
+
+export async function collectionDetail(c: Collection): Promise<CollectionDetail> {
+  const feeding = await Subject.findAll({ where: { collectionId: c.id, feedsAltText: true }, attributes: ['id'], order: [['id', 'ASC']] });
+  return {
+    id: c.id,
+    slug: c.slug,
+    name: c.name,
+    description: c.description,
+    medium: c.medium,
+    altTextLanguage: c.altTextLanguage,
+    altTextMaxLength: c.altTextMaxLength,
+    houseStyle: c.houseStyle,
+    scheduleCron: c.scheduleCron,
+    scheduleTimezone: c.scheduleTimezone,
+    scheduleEnabled: c.scheduleEnabled,
+    dropFolder: c.dropFolder ?? '',
+    archivedAt: c.archivedAt ? c.archivedAt.toISOString() : null,
+    updatedAt: c.updatedAt.toISOString(),
+    feedingSubjectIds: feeding.map((s) => s.id),
+  };
+}
+
+export async function collectionOr404(id: number): Promise<Collection> {
+  const c = await Collection.findByPk(id);
+  if (!c) throw new HttpProblem(404, 'Not found', 'No such collection.');
+  return c;
+}
+
+function slugTaken(slug: string): HttpProblem {
+  return new HttpProblem(409, 'Short name in use', `Another collection (perhaps an archived one) already uses the short name “${slug}”.`, { errors: [{ path: 'slug', message: 'Already used by another collection.' }] });
+}
+
+export async function createCollection(input: CollectionCreate): Promise<Collection> {
+  try {
+    return await Collection.create({ ...input, dropFolder: null, archivedAt: null });
+  } catch (err) {
+    if (err instanceof UniqueConstraintError) throw slugTaken(input.slug);
+    throw err;
+  }
+}
+
+/**
+ * Saves every setting of a collection and which of its subjects feed alt-text drafts, in one transaction.
+ * The copy must be as fresh as the stored one (`updatedAt`): otherwise 409 and nothing changes.
+ */
+export async function updateCollection(sequelize: Sequelize, id: number, input: CollectionUpdate): Promise<Collection> {
+  const { feedingSubjectIds, updatedAt, ...settings } = input;
+  try {
+    return await sequelize.transaction(async (transaction) => {
+      const c = await Collection.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE });
+      if (!c) throw new HttpProblem(404, 'Not found', 'No such collection.');
+      if (c.updatedAt.getTime() !== new Date(updatedAt).getTime()) {
+        throw new HttpProblem(409, 'Changed by someone else', `${c.name} was changed after this copy was opened. Reload it to see the change, then make yours again.`);
+      }
+      const own = await Subject.findAll({ where: { collectionId: id }, attributes: ['id'], transaction });
+      const ownIds = new Set(own.map((s) => s.id));
+      const foreign = feedingSubjectIds.filter((s) => !ownIds.has(s));
+      if (foreign.length > 0) throw new HttpProblem(400, 'Invalid request', `Subjects ${foreign.join(', ')} do not belong to this collection.`, { errors: [{ path: 'feedingSubjectIds', message: 'Only this collection’s subjects can feed its alt text.' }] });
+      await c.update(settings, { transaction });
+      const feeding = new Set(feedingSubjectIds);
+      await Subject.update({ feedsAltText: true }, { where: { collectionId: id, id: [...feeding] }, transaction });
+      await Subject.update({ feedsAltText: false }, { where: { collectionId: id, id: [...ownIds].filter((s) => !feeding.has(s)) }, transaction });
+      return c;
+    });
+  } catch (err) {
+    if (err instanceof UniqueConstraintError) throw slugTaken(settings.slug);
+    throw err;
+  }
+}
+
+/** Archiving hides a collection from every list and stops its schedule; nothing is deleted, and restoring brings it back. */
+export async function setArchived(id: number, archived: boolean): Promise<Collection> {
+  const c = await collectionOr404(id);
+  await c.update({ archivedAt: archived ? (c.archivedAt ?? new Date()) : null });
+  return c;
+}
+
+export async function listArchivedCollections(): Promise<Array<{ id: number; slug: string; name: string; medium: string; archivedAt: string }>> {
+  const rows = await Collection.findAll({ where: { archivedAt: { [Op.ne]: null } }, order: [['name', 'ASC']] });
+  return rows.map((c) => ({ id: c.id, slug: c.slug, name: c.name, medium: c.medium, archivedAt: c.archivedAt!.toISOString() }));
 }

@@ -2,7 +2,6 @@ import { readFile } from 'node:fs/promises';
 import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import {
   RunningMean,
-  createEmbedder,
   exampleCentre,
   featureFromBuffer,
   featureToBuffer,
@@ -12,25 +11,55 @@ import {
   scanCentre,
   type CollectionCentres,
   type Embedder,
-  type EmbedderConfig,
+  type EmbedderStatus,
 } from '../ml/index.ts';
+import { selectedEmbedderConfig } from '../ml/backbone/selection.ts';
+import { startWorkerEmbedders, type WorkerEmbedder } from '../ml/backbone/worker-embedder.ts';
+import { logger } from '../logger.ts';
 import { Embedding } from '../models/index.ts';
 import type { Storage } from './storage.ts';
 
-let shared: Promise<Embedder> | null = null;
+let shared: Promise<WorkerEmbedder> | null = null;
+let sharedState: { state: 'idle' | 'starting' | 'ready' | 'failed'; status?: EmbedderStatus; error?: string } = { state: 'idle' };
 
 /**
- * The process's embedder, built once on first use from CARTOUCHE_EMBEDDER_CONFIG (a JSON file naming
- * another model) or the default backbone that ships in node_modules.
+ * The process's embedder, built once on first use from the embedder settings (CARTOUCHE_EMBEDDER,
+ * CARTOUCHE_EMBEDDER_CONFIG — see ml/backbone/selection.ts). It runs in a worker thread of its own, so
+ * an archivist's upload never holds the API's event loop while the backbone runs.
  */
 export function processEmbedder(): Promise<Embedder> {
-  shared ??= (async () => {
-    const file = process.env.CARTOUCHE_EMBEDDER_CONFIG;
-    const config = file ? (JSON.parse(await readFile(file, 'utf8')) as EmbedderConfig) : undefined;
-    return createEmbedder(config);
-  })();
-  shared.catch(() => (shared = null));
+  if (!shared) {
+    sharedState = { state: 'starting' };
+    const starting = (async () => (await startWorkerEmbedders(await selectedEmbedderConfig(), 1))[0]!)();
+    shared = starting;
+    starting.then(
+      (e) => {
+        sharedState = { state: 'ready', status: e.status };
+        const log = { embedder: e.id, runtime: e.status.runtime, fallbackReason: e.status.fallbackReason ?? undefined };
+        if (e.status.fallbackReason) logger.warn(log, 'API embedder started on the fallback runtime');
+        else logger.info(log, 'API embedder started');
+      },
+      (err: unknown) => {
+        sharedState = { state: 'failed', error: err instanceof Error ? err.message : String(err) };
+        logger.error({ err }, 'API embedder could not start');
+        if (shared === starting) shared = null;
+      },
+    );
+  }
   return shared;
+}
+
+/** Where the process's embedder stands, without starting it (for /api/health). */
+export function processEmbedderState(): { state: 'idle' | 'starting' | 'ready' | 'failed'; status?: EmbedderStatus; error?: string } {
+  return sharedState;
+}
+
+/** Stops the process's embedder thread (tests, shutdown); the next `processEmbedder()` starts a new one. */
+export async function stopProcessEmbedder(): Promise<void> {
+  const current = shared;
+  shared = null;
+  sharedState = { state: 'idle' };
+  if (current) (await current.catch(() => null))?.dispose();
 }
 
 export type OwnerType = 'item' | 'example';

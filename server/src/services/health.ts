@@ -1,15 +1,46 @@
 import { Op, type Sequelize } from 'sequelize';
+import type { EmbedderSelection, EmbedderStatus } from '../ml/index.ts';
 import { WorkerHeartbeat } from '../models/index.ts';
+
+/** The API process's embedder as /api/health shows it (the night-shift worker reads the same settings). */
+export interface EmbedderHealth {
+  /** what the settings ask for: the built-in backbone on onnx or tfjs, or a model named by a configuration file */
+  requested: 'onnx' | 'tfjs' | 'configured model';
+  /** idle: not needed yet (it starts with the first upload of examples); failed: it could not start */
+  state: 'idle' | 'starting' | 'ready' | 'failed';
+  id: string | null;
+  runtime: 'onnx' | 'tfjs' | null;
+  /** why the requested runtime is not the one in use */
+  fallbackReason: string | null;
+  /** ONNX against TF.js on the start-up probe image */
+  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
+  error?: string;
+}
+
+/** Shapes the embedder part of the report from the settings and the process embedder's state. */
+export function embedderHealth(selection: EmbedderSelection, current: { state: EmbedderHealth['state']; status?: EmbedderStatus; error?: string }): EmbedderHealth {
+  const s = current.status;
+  return {
+    requested: selection.configFile ? 'configured model' : selection.runtime,
+    state: current.state,
+    id: s?.id ?? null,
+    runtime: s?.runtime ?? null,
+    fallbackReason: s?.fallbackReason ?? null,
+    agreement: s?.verification ? { relativeL2: s.verification.relativeL2, maxAbs: s.verification.maxAbs, lowestCosine: s.verification.lowestCosine } : null,
+    ...(current.error ? { error: current.error } : {}),
+  };
+}
 
 export interface HealthReport {
   status: 'ok' | 'degraded';
   version: string;
   database: { ok: boolean; latencyMs: number | null; error?: string };
   worker: { state: 'running' | 'stale' | 'absent'; lastHeartbeatAt: string | null; count: number };
+  embedder: EmbedderHealth;
 }
 
-/** Checks the database with a round trip and reads the night-shift workers' heartbeats. */
-export async function getHealth(sequelize: Sequelize, opts: { version: string; workerStaleAfterMs: number; now?: Date }): Promise<HealthReport> {
+/** Checks the database with a round trip, reads the night-shift workers' heartbeats, and reports the embedder. */
+export async function getHealth(sequelize: Sequelize, opts: { version: string; workerStaleAfterMs: number; embedder: EmbedderHealth; now?: Date }): Promise<HealthReport> {
   const now = opts.now ?? new Date();
   const started = performance.now();
   try {
@@ -20,6 +51,7 @@ export async function getHealth(sequelize: Sequelize, opts: { version: string; w
       version: opts.version,
       database: { ok: false, latencyMs: null, error: err instanceof Error ? err.message : String(err) },
       worker: { state: 'absent', lastHeartbeatAt: null, count: 0 },
+      embedder: opts.embedder,
     };
   }
   const latencyMs = Math.round((performance.now() - started) * 10) / 10;
@@ -28,9 +60,11 @@ export async function getHealth(sequelize: Sequelize, opts: { version: string; w
   const last = live[0]?.heartbeatAt ?? null;
   const state = fresh.length > 0 ? 'running' : live.length > 0 ? 'stale' : 'absent';
   return {
-    status: state === 'running' ? 'ok' : 'degraded',
+    // a fallback to TF.js is slower, not broken; an embedder that cannot start is
+    status: state === 'running' && opts.embedder.state !== 'failed' ? 'ok' : 'degraded',
     version: opts.version,
     database: { ok: true, latencyMs },
     worker: { state, lastHeartbeatAt: last ? last.toISOString() : null, count: fresh.length },
+    embedder: opts.embedder,
   };
 }

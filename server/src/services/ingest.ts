@@ -1,4 +1,4 @@
-import { stat } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import sharp, { type Metadata } from 'sharp';
 import type { Sequelize } from 'sequelize';
 import type { AppContext } from '../context.ts';
@@ -71,7 +71,15 @@ export interface IngestRequest {
   /** who brought the file in; null for the night shift */
   actorId?: number | null;
   origin: IngestOrigin;
+  /** also return a small lossless image of the scan for the embedder (the night shift embeds it at once) */
+  embedInput?: boolean;
 }
+
+/**
+ * Files on disk up to this size are read into memory once: hashed, decoded and stored from the same bytes
+ * (so a file that changes while it is read can never land under the wrong key); larger ones are streamed.
+ */
+export const READ_WHOLE_BYTES = 64 * 1024 * 1024;
 
 export type RejectCode = 'empty' | 'too-large' | 'unsupported-format' | 'unreadable' | 'too-many-pixels' | 'truncated' | 'damaged';
 
@@ -88,6 +96,8 @@ export type IngestOutcome =
       byteSize: number;
       /** things worth knowing that did not stop the file (a misleading extension, a second page, a changed identifier) */
       notes: string[];
+      /** the thumbnail's pixels as a lossless PNG, when the request asked for an embedding input */
+      embedInput?: Buffer;
     }
   | { outcome: 'duplicate'; fileName: string; itemId: number; identifier: string; reason: string }
   | { outcome: 'rejected'; fileName: string; code: RejectCode; reason: string };
@@ -111,7 +121,7 @@ const acceptedList = 'JPEG, PNG, TIFF or WebP';
  */
 export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<IngestOutcome> {
   const fileName = baseName(req.fileName);
-  const source = 'path' in req.source ? req.source.path : req.source.buffer;
+  let source = 'path' in req.source ? req.source.path : req.source.buffer;
   const reject = (code: RejectCode, reason: string): IngestOutcome => ({ outcome: 'rejected', fileName, code, reason });
 
   await openCollection(req.collectionId);
@@ -119,6 +129,8 @@ export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<
   const byteSize = typeof source === 'string' ? (await stat(source)).size : source.length;
   if (byteSize === 0) return reject('empty', 'The file is empty (0 bytes).');
   if (byteSize > deps.limits.maxFileBytes) return reject('too-large', tooLargeReason(byteSize, deps.limits.maxFileBytes));
+  // a scan of ordinary size is read once; everything below works on those bytes
+  if (typeof source === 'string' && byteSize <= READ_WHOLE_BYTES) source = await readFile(source);
 
   const head = typeof source === 'string' ? await readHead(source, SNIFF_BYTES) : source.subarray(0, SNIFF_BYTES);
   const sniffed = sniffFormat(head);
@@ -146,7 +158,7 @@ export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<
 
   let derived: Awaited<ReturnType<typeof makeDerivatives>>;
   try {
-    derived = await makeDerivatives(source, deps.limits.maxPixels, deps.sizes ?? DEFAULT_SIZES);
+    derived = await makeDerivatives(source, deps.limits.maxPixels, deps.sizes ?? DEFAULT_SIZES, { embedInput: req.embedInput });
   } catch (err) {
     const message = decoderMessage(err);
     if (/pixel limit/i.test(message)) return reject('too-many-pixels', tooManyPixels(meta.width, meta.height, deps.limits.maxPixels));
@@ -219,6 +231,7 @@ export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<
     height: upright.height,
     byteSize,
     notes,
+    ...(derived.embedInput ? { embedInput: derived.embedInput } : {}),
   };
 }
 

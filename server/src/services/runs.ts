@@ -3,7 +3,7 @@ import { HttpProblem } from '../http/problem.ts';
 import { Collection, Job, Run } from '../models/index.ts';
 
 // tonight's models learn from today's decisions before they suggest
-export const STAGES = ['ingest', 'embed', 'retrain', 'suggest', 'digest'] as const;
+export const STAGES = ['ingest', 'embed', 'text', 'retrain', 'suggest', 'digest'] as const;
 export type Stage = (typeof STAGES)[number];
 
 export interface StageReport {
@@ -25,11 +25,15 @@ export interface RunReport {
 
 export interface RunCounts {
   ingested: number;
+  /** items whose text (OCR) was read in this run */
+  textRead: number;
   duplicates: number;
   rejected: number;
   embedded: number;
   suggested: number;
   retrained: number;
+  /** new versions of the collection's weight map trained by the retrain stage */
+  weightMapsTrained: number;
   [key: string]: number;
 }
 
@@ -38,7 +42,7 @@ export const emptyReport = (): RunReport => ({
   rejected: [],
   errors: [],
 });
-export const emptyCounts = (): RunCounts => ({ ingested: 0, duplicates: 0, rejected: 0, embedded: 0, suggested: 0, retrained: 0 });
+export const emptyCounts = (): RunCounts => ({ ingested: 0, duplicates: 0, rejected: 0, embedded: 0, textRead: 0, suggested: 0, retrained: 0, weightMapsTrained: 0 });
 
 export const RUN_JOB = 'nightshift-run';
 
@@ -94,7 +98,11 @@ export function runView(run: Run) {
     finishedAt: run.finishedAt?.toISOString() ?? null,
     durationMs: started ? end - started : null,
     counts: run.counts as RunCounts,
-    stages: STAGES.map((name) => ({ name, ...report.stages[name], eta: eta(report.stages[name]) })),
+    // a run recorded before a stage existed reports it as not started
+    stages: STAGES.map((name) => {
+      const stage = report.stages[name] ?? { state: 'pending' as const, done: 0, total: null, startedAt: null, finishedAt: null };
+      return { name, ...stage, eta: eta(stage) };
+    }),
     rejected: report.rejected,
     errors: report.errors,
     error: run.error,

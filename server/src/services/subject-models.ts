@@ -25,6 +25,7 @@ import {
 import { HttpProblem } from '../http/problem.ts';
 import { Item, Subject, SubjectModel, Suggestion } from '../models/index.ts';
 import { itemRows, prepareCollection, type PreparedCollection } from './features.ts';
+import { carryDecision, chosenRegressor, latestRegressorNote } from './weight-maps.ts';
 
 type EmbedderInfo = Pick<Embedder, 'id' | 'dimension' | 'layout'>;
 
@@ -118,7 +119,7 @@ export async function synthesizeSubjectModel(
 
   let built: Built;
   if (request.mode === 'carried') {
-    built = await buildCarried(embedder, subject, request.sourceSubjectId, base);
+    built = await buildCarried(sequelize, embedder, subject, prepared, request.sourceSubjectId, base);
   } else if (request.mode === 'narrower') {
     built = await buildNarrower(embedder, subject, prepared, examples.map((e) => e.prepared), request.broaderSubjectId, base);
   } else if (canTrain({ confirmed: confirmed.length, rejected: rejected.length })) {
@@ -126,7 +127,7 @@ export async function synthesizeSubjectModel(
     built = {
       model: result.model,
       method: 'trained',
-      madeFrom: base,
+      madeFrom: { ...base, how: `Logistic regression on ${confirmed.length} confirmed and ${rejected.length} rejected item(s), its probabilities Platt-calibrated.` },
       calibration: result.calibration,
       usesNegatives: true,
       rebuild: async (pos, neg) => (await trainedModel({ confirmed: pos.map((j) => j.feature), rejected: neg.map((j) => j.feature), folds: 2 })).model,
@@ -136,12 +137,36 @@ export async function synthesizeSubjectModel(
     built = {
       model: photoAugmentedModel({ examples: ex, confirmed }),
       method: 'photo_augmented',
-      madeFrom: base,
+      madeFrom: { ...base, how: `The prototype of ${examples.length} example(s), with ${confirmed.length} confirmed item(s) joined as photograph examples.` },
       rebuild: (pos) => photoAugmentedModel({ examples: pos.filter((j) => j.kind === 'example').map((j) => j.feature), confirmed: pos.filter((j) => j.kind === 'confirmed').map((j) => j.feature) }),
     };
   } else {
     if (examples.length === 0) throw new HttpProblem(409, 'No examples yet', `Add at least one example of "${subject.prefLabel}" (a drawing, an illustration or a photograph) first.`, { type: '/problems/no-examples' });
-    built = { model: prototypeModel(examples.map((e) => e.prepared)), method: 'prototype', madeFrom: base, rebuild: (pos) => prototypeModel(pos.map((j) => j.feature)) };
+    // the collection's weight map, when one measured better than the prototype on held-out subjects
+    const regressor = await chosenRegressor(subject.collectionId, embedder.id);
+    const ex = examples.map((e) => e.prepared);
+    if (regressor) {
+      const { row, map } = regressor;
+      built = {
+        model: map.model(ex),
+        method: 'regressed',
+        madeFrom: {
+          ...base,
+          regressorId: map.id,
+          weightMapVersionId: row.id,
+          weightMapVersion: row.version,
+          how: `The prototype of ${ex.length} example(s), mapped by the collection's weight map version ${row.version} (${row.kind}), which ranked held-out subjects better than the prototype (AP ${row.mapAp.toFixed(3)} against ${row.baselineAp.toFixed(3)}).`,
+        },
+        rebuild: (pos) => map.model(pos.map((j) => j.feature)),
+      };
+    } else {
+      built = {
+        model: prototypeModel(ex),
+        method: 'prototype',
+        madeFrom: { ...base, weightMapVersionId: null, how: `The prototype of ${ex.length} example(s). ${await latestRegressorNote(subject.collectionId, embedder.id)}` },
+        rebuild: (pos) => prototypeModel(pos.map((j) => j.feature)),
+      };
+    }
   }
 
   // quality: positives left out one at a time; negatives are the rejected items plus other subjects' confirmed items
@@ -233,23 +258,46 @@ async function buildNarrower(
   return {
     model: make(examples),
     method: 'refined',
-    madeFrom: { ...base, broaderSubjectId: broader.id, siblingSubjectIds: siblingRows.map((s) => s.id), broaderModelId: broaderModelRow?.id },
+    madeFrom: {
+      ...base,
+      broaderSubjectId: broader.id,
+      siblingSubjectIds: siblingRows.map((s) => s.id),
+      broaderModelId: broaderModelRow?.id,
+      how: `Refined from "${broader.prefLabel}" with ${examples.length} example(s) of its own, set apart from ${siblings.length} sibling subject(s) and shaped by ${broaderItems.length} item(s) of the broader subject.`,
+    },
     rebuild: (pos) => make(pos.filter((j) => j.kind === 'example').map((j) => j.feature)),
   };
 }
 
-async function buildCarried(embedder: EmbedderInfo, subject: Subject, sourceSubjectId: number, base: MadeFrom): Promise<Built> {
+async function buildCarried(sequelize: Sequelize, embedder: EmbedderInfo, subject: Subject, prepared: PreparedCollection, sourceSubjectId: number, base: MadeFrom): Promise<Built> {
   const source = await Subject.findByPk(sourceSubjectId);
   if (!source) throw new HttpProblem(400, 'Invalid source subject', 'No such subject to carry a model from.');
   if (source.collectionId === subject.collectionId) throw new HttpProblem(400, 'Same collection', 'Carry a model from a subject of another collection.');
   const sourceModel = await activeModel(source.id, embedder.id);
   if (!sourceModel) throw new HttpProblem(409, 'No model to carry', `"${source.prefLabel}" has no model yet in its collection.`, { type: '/problems/no-model' });
-  // without a trained map between the two collections, re-centring alone carries the model: the weights
-  // live in centred feature space, and each collection is centred on its own scans
+  // a carry map trained between the two collections' shared subjects, used only when it beat re-centring
+  // alone on held-out shared subjects; otherwise re-centring alone carries the model (its weights live in
+  // centred feature space, and each collection is centred on its own scans)
+  const decision = await carryDecision(sequelize, embedder, source.collectionId, subject.collectionId, { prepared });
   return {
-    model: carriedModel(fromStoredModel(sourceModel)),
+    model: carriedModel(fromStoredModel(sourceModel), decision.map),
     method: 'carried',
-    madeFrom: { ...base, sourceCollectionId: source.collectionId, sourceModelId: sourceModel.id },
+    madeFrom: {
+      ...base,
+      sourceCollectionId: source.collectionId,
+      sourceSubjectId: source.id,
+      sourceModelId: sourceModel.id,
+      carry: {
+        use: decision.use,
+        reason: decision.reason,
+        sharedSubjects: decision.sharedSubjects,
+        weightMapVersionId: decision.version?.id ?? null,
+        weightMapVersion: decision.version?.version ?? null,
+        heldOut: decision.version ? { mapAp: decision.version.mapAp, recentringAp: decision.version.baselineAp } : null,
+      },
+      ...(decision.map ? { regressorId: decision.map.id } : {}),
+      how: decision.use === 'map' ? `Carried from another collection through a carry map. ${decision.reason}` : `Carried from another collection by re-centring alone. ${decision.reason}`,
+    },
   };
 }
 
@@ -275,7 +323,8 @@ export interface RankedPreview {
 
 /**
  * The items a subject would catch: brute-force scores of every embedded item of the collection under the
- * active model (or, before one exists, the prototype of its examples), top N with z ≥ minZ.
+ * active model (or, before one exists, what from-examples would make of its examples: the regressed model
+ * when the collection has a chosen weight map, else the prototype), top N with z ≥ minZ.
  */
 export async function rankedPreview(sequelize: Sequelize, embedder: EmbedderInfo, subjectId: number, opts: { topN?: number; minZ?: number } = {}): Promise<RankedPreview> {
   const subject = await loadSubject(subjectId);
@@ -289,7 +338,9 @@ export async function rankedPreview(sequelize: Sequelize, embedder: EmbedderInfo
   } else {
     const ex = prepared.examples.filter((e) => e.subjectId === subjectId).map((e) => e.prepared);
     if (ex.length === 0) return { subjectId, model: null, scored: prepared.itemIds.length, items: [] };
-    model = prototypeModel(ex);
+    // what from-examples would make: the regressed model when the collection has a chosen weight map
+    const regressor = await chosenRegressor(subject.collectionId, embedder.id);
+    model = regressor ? regressor.map.model(ex) : prototypeModel(ex);
   }
   if (prepared.itemIds.length === 0) return { subjectId, model: row ? summarise(row) : null, scored: 0, items: [] };
   const ranked = rankItems(prepared.items, prepared.dimension, model, { topN: opts.topN, minZ: opts.minZ, calibration });

@@ -3,6 +3,7 @@ import { fromStoredModel, probabilityOf, rankItems, type Calibration, type Embed
 import { Item, Subject, SubjectModel, Suggestion } from '../models/index.ts';
 import { prepareCollection } from './features.ts';
 import { synthesizeSubjectModel } from './subject-models.ts';
+import { refreshRegressor, subjectsWithStaleMap, type RefreshOutcome, type WeightMapSettings } from './weight-maps.ts';
 
 type EmbedderInfo = Pick<Embedder, 'id' | 'dimension' | 'layout'>;
 
@@ -99,8 +100,30 @@ export async function subjectsToRetrain(sequelize: Sequelize, collectionId: numb
   return rows.map((r) => Number(r.id));
 }
 
-export async function retrainCollection(sequelize: Sequelize, embedder: EmbedderInfo, collectionId: number, opts: Pick<SuggestOptions, 'onProgress' | 'shouldStop'> = {}): Promise<{ retrained: number; failed: Array<{ subjectId: number; reason: string }> }> {
-  const ids = await subjectsToRetrain(sequelize, collectionId, embedder.id);
+export interface RetrainOutcome {
+  retrained: number;
+  failed: Array<{ subjectId: number; reason: string }>;
+  /** what happened to the collection's weight map */
+  weightMap: Pick<RefreshOutcome, 'status' | 'chosenChanged' | 'reason'> & { version: number | null; chosenVersion: number | null };
+}
+
+/**
+ * Tonight's retraining for a collection: first the weight map (retrained only when the decisions about its
+ * training subjects changed), then every subject whose decisions are newer than its model, or whose
+ * from-examples model was made with another weight map than the one chosen now. Idempotent: a second call
+ * with nothing new trains nothing and rebuilds nothing.
+ */
+export async function retrainCollection(
+  sequelize: Sequelize,
+  embedder: EmbedderInfo,
+  collectionId: number,
+  opts: Pick<SuggestOptions, 'onProgress' | 'shouldStop'> & { regressorSettings?: Partial<WeightMapSettings> } = {},
+): Promise<RetrainOutcome> {
+  const map = await refreshRegressor(sequelize, embedder, collectionId, { settings: opts.regressorSettings });
+  const weightMap = { status: map.status, chosenChanged: map.chosenChanged, reason: map.reason, version: map.latest?.version ?? null, chosenVersion: map.chosen?.version ?? null };
+  const byDecision = await subjectsToRetrain(sequelize, collectionId, embedder.id);
+  const byMap = await subjectsWithStaleMap(collectionId, embedder.id, map.chosen?.id ?? null);
+  const ids = [...new Set([...byDecision, ...byMap])].sort((a, b) => a - b);
   const failed: Array<{ subjectId: number; reason: string }> = [];
   let retrained = 0;
   for (const [i, subjectId] of ids.entries()) {
@@ -113,5 +136,5 @@ export async function retrainCollection(sequelize: Sequelize, embedder: Embedder
     }
     await opts.onProgress?.(i + 1, ids.length);
   }
-  return { retrained, failed };
+  return { retrained, failed, weightMap };
 }

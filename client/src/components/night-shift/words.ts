@@ -5,6 +5,7 @@ import { formatCount } from '../../lib/format';
 export const stageLabels: Record<StageName, string> = {
   ingest: 'Take in the drop folder',
   embed: 'Read the new scans',
+  text: 'Find text in the scans',
   suggest: 'Suggest subjects',
   retrain: 'Rebuild subject models',
   digest: 'Mail the digest',
@@ -41,6 +42,7 @@ export function countWords(counts: Run['counts']): string[] {
     `${plural(counts.duplicates, 'duplicate', 'duplicates')} passed over`,
     `${plural(counts.rejected, 'file', 'files')} refused`,
     `${plural(counts.embedded, 'scan', 'scans')} read`,
+    `${plural(counts.textRead ?? 0, 'scan', 'scans')} searched for text`,
     `${plural(counts.suggested, 'suggestion', 'suggestions')} made`,
     `${plural(counts.retrained, 'subject model', 'subject models')} rebuilt`,
   ];

@@ -2,8 +2,19 @@ import type { Health } from '../../api/health';
 import type { StatusTone } from '../ui/status-badge';
 import { formatCount, formatDateTime } from '../../lib/format';
 
+/** The embedder part of the report (newer servers send it; an older one may not). */
+export interface EmbedderReport {
+  requested: 'onnx' | 'tfjs' | 'configured model';
+  state: 'idle' | 'starting' | 'ready' | 'failed';
+  id: string | null;
+  runtime: 'onnx' | 'tfjs' | null;
+  fallbackReason: string | null;
+  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
+  error?: string;
+}
+
 export interface HealthPart {
-  key: 'database' | 'worker';
+  key: 'database' | 'worker' | 'embedder';
   tone: StatusTone;
   /** The state in a few words, shown in the badge. */
   state: string;
@@ -15,8 +26,31 @@ function heartbeat(iso: string | null): string | null {
   return iso === null ? null : formatDateTime(iso);
 }
 
+const RUNTIME_NAMES = { onnx: 'ONNX Runtime', tfjs: 'TensorFlow.js' } as const;
+
+/** The embedder in words: which runtime turns images into features, and why when it is the fallback. */
+export function describeEmbedder(e: EmbedderReport): HealthPart {
+  const asked = e.requested === 'configured model' ? 'a configured model' : RUNTIME_NAMES[e.requested];
+  switch (e.state) {
+    case 'idle':
+      return { key: 'embedder', tone: 'waiting', state: 'Image features not started', detail: `${asked} starts with the first upload of examples` };
+    case 'starting':
+      return { key: 'embedder', tone: 'waiting', state: 'Image features starting', detail: `loading ${asked}` };
+    case 'failed':
+      return { key: 'embedder', tone: 'down', state: 'Image features unavailable', detail: e.error ?? 'the embedder could not start' };
+    case 'ready': {
+      const runtime = e.runtime ? RUNTIME_NAMES[e.runtime] : 'an unknown runtime';
+      if (e.fallbackReason) {
+        return { key: 'embedder', tone: 'attention', state: `Image features on ${runtime}`, detail: `the slower fallback; ${asked} is not in use: ${e.fallbackReason}` };
+      }
+      const checked = e.agreement ? `, checked against TensorFlow.js at start (relative difference ${e.agreement.relativeL2.toPrecision(1)})` : '';
+      return { key: 'embedder', tone: 'good', state: `Image features on ${runtime}`, detail: `${e.id ?? 'unnamed model'}${checked}` };
+    }
+  }
+}
+
 /** Health report -> words. Every state is spelled out; nothing relies on colour or shape. */
-export function describeHealth(health: Health): { summary: string; tone: StatusTone; parts: HealthPart[] } {
+export function describeHealth(health: Health & { embedder?: EmbedderReport }): { summary: string; tone: StatusTone; parts: HealthPart[] } {
   const { database, worker } = health;
 
   const databasePart: HealthPart = database.ok
@@ -68,6 +102,6 @@ export function describeHealth(health: Health): { summary: string; tone: StatusT
   return {
     summary: healthy ? 'Everything is working' : 'Some parts need attention',
     tone: healthy ? 'good' : 'attention',
-    parts: [databasePart, workerPart],
+    parts: health.embedder ? [databasePart, workerPart, describeEmbedder(health.embedder)] : [databasePart, workerPart],
   };
 }

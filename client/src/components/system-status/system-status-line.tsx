@@ -4,7 +4,7 @@ import { Button } from '../ui/button';
 import { StatusBadge } from '../ui/status-badge';
 import { describeHealth } from './describe-health';
 
-/** One line on the state of the database and the night-shift worker, refreshed every half minute. */
+/** One line on the state of the database, the night-shift worker and the image-feature runtime, refreshed every half minute. */
 export function SystemStatusLine() {
   const health = useHealth();
 
@@ -58,9 +58,9 @@ function HealthBody({ health }: { health: ReturnType<typeof useHealth> }) {
     <div className="flex flex-col gap-2">
       <ul className="flex flex-col gap-x-8 gap-y-2 md:flex-row md:flex-wrap md:items-center">
         {parts.map((part) => (
-          <li key={part.key} className="flex flex-wrap items-center gap-x-2 gap-y-1">
+          <li key={part.key} className="flex min-w-0 max-w-full flex-wrap items-center gap-x-2 gap-y-1">
             <StatusBadge tone={part.tone}>{part.state}</StatusBadge>
-            <span className="text-sm text-muted">{part.detail}</span>
+            <span className="min-w-0 text-sm text-muted wrap-anywhere">{part.detail}</span>
           </li>
         ))}
       </ul>

@@ -1,8 +1,10 @@
 /**
  * The embedder: turns image files into feature vectors. Pluggable by configuration; every stored
  * embedding records the `id` of the embedder that made it, and features of different ids are never mixed.
+ * The built-in backbone runs on onnxruntime-node (converted from its TF.js graph, see ../onnx/) or on
+ * TF.js wasm; the two have distinct ids.
  *
- * The default is the backbone of the CenterNet detector (MobileNetV3-Large, width 0.75, trained on COCO)
+ * The built-in one is the backbone of the CenterNet detector (MobileNetV3-Large, width 0.75, trained on COCO)
  * that ships in the npm package `@vladmandic/human` (MIT), read at 320 × 320 px up to the output of
  * block 14, average- and max-pooled: 2 × 120 = 240 floats. What is returned (and stored) are the raw pooled
  * values; centring and normalisation happen at synthesis and scoring time (see ../centring.ts).
@@ -74,25 +76,59 @@ export interface TfjsLayersEmbedderConfig {
 }
 
 /**
- * An ONNX model run by onnxruntime-node. The configuration shape is fixed here so sites can already name
- * it; the implementation registers itself with `registerEmbedderKind('onnx', …)` once the package
- * onnxruntime-node is a dependency.
+ * A site-supplied ONNX model run by onnxruntime-node (one single-threaded session per worker thread).
+ * A rank-2 output [N, D] is taken as pooled features (split into `blocks`); a rank-4 output is a feature
+ * map pooled as `pooling` lists. There is no TF.js twin to fall back to: when onnxruntime-node cannot
+ * load, creating it fails with the reason.
  */
 export interface OnnxEmbedderConfig {
   kind: 'onnx';
+  /** .onnx file; relative paths resolve against the project root */
   modelPath: string;
   inputName: string;
   outputName: string;
   inputSize: number;
-  /** the ONNX graph's input layout */
+  /** the ONNX graph's input layout (default NHWC) */
   inputLayout?: 'NHWC' | 'NCHW';
+  /** a rank-4 output's layout (default: the input layout) */
+  outputLayout?: 'NHWC' | 'NCHW';
   pixelRange?: PixelRange;
+  /** pooling of a rank-4 output (default avg, max) */
   pooling?: Pooling[];
+  /** block sizes of a rank-2 output (default one block) */
+  blocks?: number[];
   id: string;
+  /** ORT intra-op threads per session (default 1) */
   threads?: number;
+  /** images per session run (default 1) */
+  batch?: number;
+  maxInputPixels?: number;
 }
 
-export type EmbedderConfig = TfjsGraphEmbedderConfig | TfjsLayersEmbedderConfig | OnnxEmbedderConfig;
+/**
+ * The built-in backbone (CenterNet's MobileNetV3, block 14, [avg, max], 320 px) on either runtime.
+ * `onnx`: converted from the TF.js graph at first start and cached, checked against TF.js on a probe
+ * image, and replaced by the TF.js embedder (with the reason recorded) when onnxruntime-node cannot load
+ * or the check fails. `tfjs`: the TF.js wasm embedder.
+ */
+export interface BuiltinEmbedderConfig {
+  kind: 'builtin';
+  runtime: EmbedderRuntime;
+  /** folder for the converted .onnx file (default <project>/.data/models) */
+  cacheDir?: string;
+  /** compare ONNX with TF.js on the probe image before use (default true) */
+  verify?: boolean;
+  /** with `verify: false`: the agreement an earlier check in this process measured, reported as this embedder's */
+  verified?: { images: number; maxAbs: number; relativeL2: number; lowestCosine: number };
+  /** an earlier attempt in this process already fell back for this reason: start on TF.js, report it */
+  fallbackReason?: string;
+  /** images per ONNX session run (default 1) */
+  batch?: number;
+}
+
+export type EmbedderRuntime = 'onnx' | 'tfjs';
+
+export type EmbedderConfig = TfjsGraphEmbedderConfig | TfjsLayersEmbedderConfig | OnnxEmbedderConfig | BuiltinEmbedderConfig;
 export type EmbedderKind = EmbedderConfig['kind'];
 
 /** Looks for `relative` inside a node_modules folder, from this file's folder upward. */
@@ -107,7 +143,7 @@ export function findInNodeModules(relative: string, from = dirname(fileURLToPath
 
 export const CENTERNET_FEATURE_NODE = 'tower_0/MobilenetV3/expanded_conv_14/add';
 
-/** The default embedder: CenterNet's MobileNetV3 backbone from @vladmandic/human, block 14, [avg, max] pool, 320 px. */
+/** The built-in backbone as a TF.js graph embedder: CenterNet's MobileNetV3 from @vladmandic/human, block 14, [avg, max] pool, 320 px. */
 export function defaultEmbedderConfig(): TfjsGraphEmbedderConfig {
   return {
     kind: 'tfjs-graph',
@@ -120,11 +156,48 @@ export function defaultEmbedderConfig(): TfjsGraphEmbedderConfig {
     pooling: ['avg', 'max'],
     dynamicInput: true,
     channels: 120,
-    id: 'centernet-mnv3-b14-ap-mp-320@1',
+    id: TFJS_EMBEDDER_ID,
   };
 }
 
-export const DEFAULT_EMBEDDER_ID = 'centernet-mnv3-b14-ap-mp-320@1';
+/** The built-in backbone on TF.js (wasm). */
+export const TFJS_EMBEDDER_ID = 'centernet-mnv3-b14-ap-mp-320@1';
+/**
+ * The built-in backbone converted to ONNX, on onnxruntime-node. Its features agree with TF.js's to well
+ * under 1e-4 relative (checked at every start) but are not bit-identical, so they are stored apart. The
+ * converter version is in the cache key, not here: a converter change must stay within the start-up
+ * tolerance; one that changes the features on purpose must bump this id.
+ */
+export const ONNX_EMBEDDER_ID = 'centernet-mnv3-b14-ap-mp-320-onnx@1';
+/** The id of the default configuration (`CARTOUCHE_EMBEDDER=onnx`) when onnxruntime-node works; the id in use is always `embedder.id`. */
+export const DEFAULT_EMBEDDER_ID = ONNX_EMBEDDER_ID;
+
+/** What an embedder is and, after a fallback, why it is not the one asked for. */
+export interface EmbedderStatus {
+  id: string;
+  /** the runtime doing the work */
+  runtime: EmbedderRuntime;
+  /** what the configuration asked for: the built-in backbone on a runtime, or a configured model kind */
+  requested: string;
+  /** why the requested runtime is not in use (null when it is) */
+  fallbackReason: string | null;
+  /** ONNX against TF.js on the start-up probe image (built-in ONNX only) */
+  verification: { images: number; maxAbs: number; relativeL2: number; lowestCosine: number } | null;
+  /** e.g. the cached ONNX file */
+  detail?: string;
+}
+
+const statuses = new WeakMap<Embedder, EmbedderStatus>();
+
+/** Records how an embedder came to be (factories call this; `createEmbedder` fills in a plain status otherwise). */
+export function recordEmbedderStatus(embedder: Embedder, status: EmbedderStatus): void {
+  statuses.set(embedder, status);
+}
+
+/** How an embedder came to be: runtime, what was asked for, the fallback reason. */
+export function embedderStatus(embedder: Embedder): EmbedderStatus {
+  return statuses.get(embedder) ?? { id: embedder.id, runtime: 'tfjs', requested: 'unknown', fallbackReason: null, verification: null };
+}
 
 type Factory = (config: EmbedderConfig, projectRoot: string) => Promise<Embedder>;
 const factories = new Map<string, Factory>();
@@ -184,21 +257,58 @@ registerEmbedderKind('tfjs-layers', async (config, root) => {
   });
 });
 
-const projectRootGuess = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', '..');
+registerEmbedderKind('onnx', async (config, root) => {
+  const c = config as OnnxEmbedderConfig;
+  checkCommon(c);
+  if (!c.id) throw new Error('an onnx embedder needs an id (it is recorded on every stored feature)');
+  if (c.blocks && (c.blocks.length === 0 || c.blocks.some((b) => !Number.isInteger(b) || b < 1))) throw new Error(`blocks must list positive integers, got ${JSON.stringify(c.blocks)}`);
+  const [{ loadOnnxRuntime }, { OnnxEmbedder }] = await Promise.all([import('../onnx/runtime.ts'), import('../onnx/onnx-embedder.ts')]);
+  const ort = await loadOnnxRuntime();
+  const modelPath = resolvePath(c.modelPath, root);
+  if (!existsSync(modelPath)) throw new Error(`the ONNX model ${modelPath} does not exist`);
+  const inputLayout = c.inputLayout ?? 'NHWC';
+  const embedder = await OnnxEmbedder.load(ort, {
+    model: modelPath,
+    inputName: c.inputName,
+    outputName: c.outputName,
+    inputSize: c.inputSize,
+    inputLayout,
+    outputLayout: c.outputLayout ?? inputLayout,
+    pixelRange: c.pixelRange ?? '0-255',
+    pooling: c.pooling ?? ['avg', 'max'],
+    blocks: c.blocks,
+    id: c.id,
+    threads: c.threads,
+    batch: c.batch,
+    maxInputPixels: c.maxInputPixels,
+  });
+  recordEmbedderStatus(embedder, { id: embedder.id, runtime: 'onnx', requested: 'onnx model file', fallbackReason: null, verification: null, detail: modelPath });
+  return embedder;
+});
+
+registerEmbedderKind('builtin', async (config, root) => {
+  const { createBuiltinEmbedder } = await import('./builtin.ts');
+  return createBuiltinEmbedder(config as BuiltinEmbedderConfig, root);
+});
+
+export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', '..');
+
+/** The built-in backbone on onnxruntime-node, falling back to TF.js: what `createEmbedder()` builds without a configuration. */
+export function builtinEmbedderConfig(runtime: EmbedderRuntime = 'onnx'): BuiltinEmbedderConfig {
+  return { kind: 'builtin', runtime };
+}
 
 /**
- * Builds the configured embedder (the default CenterNet backbone when no configuration is given).
- * The `onnx` kind needs onnxruntime-node; until an implementation is registered it fails with a clear message.
+ * Builds the configured embedder; without a configuration the built-in backbone on onnxruntime-node
+ * (checked against TF.js, TF.js wasm when that is not possible). `defaultEmbedderConfig()` is the same
+ * backbone on TF.js alone.
  */
-export async function createEmbedder(config: EmbedderConfig = defaultEmbedderConfig(), projectRoot = projectRootGuess): Promise<Embedder> {
+export async function createEmbedder(config: EmbedderConfig = builtinEmbedderConfig(), projectRoot = PROJECT_ROOT): Promise<Embedder> {
   const factory = factories.get(config.kind);
-  if (!factory) {
-    if (config.kind === 'onnx') {
-      throw new Error('the onnx embedder needs the npm package onnxruntime-node, which is not a dependency yet; use a tfjs-graph or tfjs-layers embedder');
-    }
-    throw new Error(`unknown embedder kind ${JSON.stringify((config as { kind: unknown }).kind)}`);
-  }
-  return factory(config, projectRoot);
+  if (!factory) throw new Error(`unknown embedder kind ${JSON.stringify((config as { kind: unknown }).kind)}`);
+  const embedder = await factory(config, projectRoot);
+  if (!statuses.has(embedder)) recordEmbedderStatus(embedder, { id: embedder.id, runtime: 'tfjs', requested: config.kind, fallbackReason: null, verification: null });
+  return embedder;
 }
 
 /** Averages the raw features of an image and its mirror image (mirror-flip averaging for examples). */

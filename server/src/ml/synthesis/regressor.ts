@@ -455,3 +455,95 @@ export async function trainWeightMapWithValidation(
   };
   return { map, validation };
 }
+
+/** A subject taking part in a held-out comparison: its training inputs, plus what its AP is measured on. */
+export interface HeldOutTask extends RegressorTask {
+  /** ids of `items` (same order), so an item confirmed for two subjects counts as positive for both */
+  itemIds?: readonly number[];
+  /** prepared features of items rejected for this subject: extra negatives when it is held out */
+  rejected?: readonly Float32Array[];
+}
+
+export interface HeldOutSubjectResult {
+  /** index of the task in the input */
+  task: number;
+  baselineAP: number;
+  mapAP: number;
+}
+
+export interface HeldOutComparison {
+  folds: number;
+  subjects: number;
+  /** mean AP of the few-shot weights as they are (prototype, or the source model re-centred) */
+  baselineMeanAP: number;
+  /** mean AP of the map's output, the map trained without the held-out subject */
+  mapMeanAP: number;
+  perSubject: HeldOutSubjectResult[];
+  /** the map measured strictly better on average */
+  better: boolean;
+}
+
+/** The few-shot weights a held-out task is judged from: its fixed input, else the prototype of all its examples. */
+function fewShotWeights(task: RegressorTask): Float32Array {
+  if (task.inputs && task.inputs.length > 0) return normalise(task.inputs[0]!);
+  return prototypeWeights(task.examples);
+}
+
+/**
+ * Measures a map against the weights it would replace on subjects it was not trained on: the subjects are
+ * split into `folds` (leave-one-subject-out when there are no more subjects than folds); for each fold a map
+ * is trained on the other subjects, and every held-out subject is scored both ways over the reviewed items
+ * (every task's confirmed items plus the subject's rejected ones), one-vs-rest average precision with the
+ * subject's own confirmed items as positives.
+ */
+export async function compareOnHeldOutSubjects(
+  tasks: readonly HeldOutTask[],
+  train: (tasks: readonly RegressorTask[]) => Promise<WeightMap>,
+  options: { folds?: number; seed?: number } = {},
+): Promise<HeldOutComparison> {
+  if (tasks.length < 3) throw new Error(`a held-out comparison needs at least 3 subjects, got ${tasks.length}`);
+  const folds = Math.min(tasks.length, Math.max(2, options.folds ?? 5));
+  const rng = seededRng((options.seed ?? 1) + 104729);
+  const order = tasks.map((_, i) => i);
+  for (let i = order.length - 1; i > 0; i--) {
+    const j = Math.floor(rng() * (i + 1));
+    [order[i], order[j]] = [order[j]!, order[i]!];
+  }
+  // the pool of reviewed items: each distinct item once, with the set of subjects it is confirmed for
+  const pool: Array<{ x: Float32Array; subjects: Set<number> }> = [];
+  const byId = new Map<number, number>();
+  tasks.forEach((t, s) =>
+    t.items.forEach((x, q) => {
+      const id = t.itemIds?.[q];
+      const at = id !== undefined ? byId.get(id) : undefined;
+      if (at !== undefined) pool[at]!.subjects.add(s);
+      else {
+        if (id !== undefined) byId.set(id, pool.length);
+        pool.push({ x, subjects: new Set([s]) });
+      }
+    }),
+  );
+  const perSubject: HeldOutSubjectResult[] = [];
+  for (let f = 0; f < folds; f++) {
+    const held = order.filter((_, i) => i % folds === f);
+    const heldSet = new Set(held);
+    const map = await train(tasks.filter((_, i) => !heldSet.has(i)));
+    for (const s of held) {
+      const t = tasks[s]!;
+      const few = fewShotWeights(t);
+      const mapped = map.apply(few);
+      const items = [...pool.map((p) => ({ x: p.x, label: p.subjects.has(s) ? 1 : 0 })), ...(t.rejected ?? []).map((x) => ({ x, label: 0 }))];
+      const labels = items.map((it) => it.label);
+      perSubject.push({
+        task: s,
+        baselineAP: averagePrecision(labels, items.map((it) => dot(few, it.x))),
+        mapAP: averagePrecision(labels, items.map((it) => dot(mapped, it.x))),
+      });
+    }
+  }
+  perSubject.sort((a, b) => a.task - b.task);
+  const mean = (k: 'baselineAP' | 'mapAP') => perSubject.reduce((acc, r) => acc + r[k], 0) / perSubject.length;
+  const baselineMeanAP = mean('baselineAP');
+  const mapMeanAP = mean('mapAP');
+  return { folds, subjects: tasks.length, baselineMeanAP, mapMeanAP, perSubject, better: mapMeanAP > baselineMeanAP };
+}

@@ -1,0 +1,2 @@
+export * from './collection.ts';
+export * from './subject.ts';
