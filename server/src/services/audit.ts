@@ -12,7 +12,19 @@ export type AuditAction =
   | 'password-reset-requested'
   | 'password-set'
   | 'item-ingested'
-  | 'metadata-imported';
+  | 'metadata-imported'
+  | 'review-subject-accepted'
+  | 'review-subject-added'
+  | 'review-subject-rejected'
+  | 'review-subject-undone'
+  | 'review-description-saved'
+  | 'review-item-approved'
+  | 'review-item-skipped'
+  | 'review-caption-flagged'
+  | 'review-caption-unflagged'
+  | 'review-example-promoted'
+  | 'review-second-recorded'
+  | 'review-settings-changed';
 
 export interface AuditInput {
   action: AuditAction;

@@ -7,7 +7,7 @@ import { Collection, Example, Item, ItemTextRead, SecondReview, Subject, Subject
 import type { SecondJudgement } from '../models/review.ts';
 import type { SuggestionState } from '../models/suggestion.ts';
 import type { GridEntry, ItemPanel, PanelSubject, PanelSuggestion, QueueEntry, SubjectMatch } from '../../../common/review/types.ts';
-import { audit, type AuditAction, type AuditInput } from './audit.ts';
+import { audit, type AuditAction } from './audit.ts';
 import { itemOr404, syncSearchText } from './catalogue.ts';
 import { embedStoredFile, processEmbedder } from './features.ts';
 import type { Storage } from './storage.ts';
@@ -24,25 +24,6 @@ import type { Storage } from './storage.ts';
 export interface Actor {
   id: number;
   ip?: string | null;
-}
-
-type ReviewAuditAction =
-  | 'review-subject-accepted'
-  | 'review-subject-added'
-  | 'review-subject-rejected'
-  | 'review-subject-undone'
-  | 'review-description-saved'
-  | 'review-item-approved'
-  | 'review-item-skipped'
-  | 'review-caption-flagged'
-  | 'review-caption-unflagged'
-  | 'review-example-promoted'
-  | 'review-second-recorded'
-  | 'review-settings-changed';
-
-/** The desk's audit events; their action names are the desk's own and not (yet) listed in AuditAction. */
-function reviewAudit(input: Omit<AuditInput, 'action'> & { action: ReviewAuditAction }, transaction?: Transaction): Promise<void> {
-  return audit({ ...input, action: input.action as AuditAction }, transaction);
 }
 
 // ------------------------------------------------------------------ the panel
@@ -279,11 +260,11 @@ async function applyDecision(item: Item, subject: Subject, decision: SubjectDeci
     const others = await Suggestion.findAll({ where: { itemId: item.id, subjectId: { [Op.ne]: subject.id }, state: { [Op.in]: CONFIRMED as SuggestionState[] } }, include: [{ model: Subject, as: 'subject', where: { kind: 'form' } }], transaction });
     for (const o of others) {
       await o.update({ state: 'rejected', decidedBy: actor.id, decidedAt: now }, { transaction });
-      await reviewAudit({ action: 'review-subject-rejected', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { subjectId: o.subjectId, subjectLabel: (o as unknown as { subject: Subject }).subject.prefLabel, from: o.state, to: 'rejected', because: 'another form was set', subjectModelId: o.subjectModelId, modelVersion: await modelVersion(o.subjectModelId, transaction) } }, transaction);
+      await audit({ action: 'review-subject-rejected', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { subjectId: o.subjectId, subjectLabel: (o as unknown as { subject: Subject }).subject.prefLabel, from: o.state, to: 'rejected', because: 'another form was set', subjectModelId: o.subjectModelId, modelVersion: await modelVersion(o.subjectModelId, transaction) } }, transaction);
     }
   }
-  const action: ReviewAuditAction = to === 'added' ? 'review-subject-added' : to === 'accepted' ? 'review-subject-accepted' : to === 'rejected' ? 'review-subject-rejected' : 'review-subject-undone';
-  await reviewAudit(
+  const action: AuditAction = to === 'added' ? 'review-subject-added' : to === 'accepted' ? 'review-subject-accepted' : to === 'rejected' ? 'review-subject-rejected' : 'review-subject-undone';
+  await audit(
     {
       action,
       actorId: actor.id,
@@ -332,7 +313,7 @@ export interface DescriptionInput {
 export async function saveDescription(sequelize: Sequelize, actor: Actor, itemId: number, input: DescriptionInput): Promise<ItemPanel> {
   const { panel } = await changeItem(sequelize, itemId, input.version, actor, { ...input }, async (item, transaction) => {
     item.set({ altText: input.altText, longDescription: input.longDescription.trim() ? input.longDescription : null, decorative: input.decorative });
-    await reviewAudit({ action: 'review-description-saved', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { altTextLength: input.altText.length, decorative: input.decorative } }, transaction);
+    await audit({ action: 'review-description-saved', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { altTextLength: input.altText.length, decorative: input.decorative } }, transaction);
   });
   return panel;
 }
@@ -360,12 +341,12 @@ export async function approveItem(sequelize: Sequelize, actor: Actor, itemId: nu
     const open = await Suggestion.findAll({ where: { itemId: item.id, state: 'proposed' }, include: [{ model: Subject, as: 'subject' }], transaction, lock: transaction.LOCK.UPDATE });
     for (const s of open) {
       await s.update({ state: 'rejected', decidedBy: actor.id, decidedAt: now }, { transaction });
-      await reviewAudit({ action: 'review-subject-rejected', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { subjectId: s.subjectId, subjectLabel: (s as unknown as { subject: Subject }).subject.prefLabel, from: 'proposed', to: 'rejected', because: 'not accepted when the item was approved', subjectModelId: s.subjectModelId, modelVersion: await modelVersion(s.subjectModelId, transaction), probability: s.probability } }, transaction);
+      await audit({ action: 'review-subject-rejected', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { subjectId: s.subjectId, subjectLabel: (s as unknown as { subject: Subject }).subject.prefLabel, from: 'proposed', to: 'rejected', because: 'not accepted when the item was approved', subjectModelId: s.subjectModelId, modelVersion: await modelVersion(s.subjectModelId, transaction), probability: s.probability } }, transaction);
     }
     item.set({ altText: altText, longDescription: input.longDescription.trim() ? input.longDescription.trim() : null, decorative: input.decorative, state: 'approved', approvedBy: actor.id, approvedAt: now });
     await sequelize.query('DELETE FROM review_skips WHERE item_id = :itemId', { replacements: { itemId: item.id }, transaction });
     const warnings = findings.filter((f) => f.severity === 'warning');
-    await reviewAudit({ action: 'review-item-approved', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { decorative: input.decorative, altTextLength: altText.length, warnings: warnings.map((w) => w.ruleId), rejectedProposals: open.length } }, transaction);
+    await audit({ action: 'review-item-approved', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: { decorative: input.decorative, altTextLength: altText.length, warnings: warnings.map((w) => w.ruleId), rejectedProposals: open.length } }, transaction);
     return { warnings, rejected: open.length };
   });
   return { panel, ...result };
@@ -374,7 +355,7 @@ export async function approveItem(sequelize: Sequelize, actor: Actor, itemId: nu
 export async function flagCaption(sequelize: Sequelize, actor: Actor, itemId: number, input: { version: number; flagged: boolean; note: string }): Promise<ItemPanel> {
   const { panel } = await changeItem(sequelize, itemId, input.version, actor, { ...input }, async (item, transaction) => {
     item.set({ captionFlagged: input.flagged, captionFlagNote: input.flagged ? input.note.trim() : null });
-    await reviewAudit({ action: input.flagged ? 'review-caption-flagged' : 'review-caption-unflagged', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: input.flagged ? { note: input.note.trim() } : {} }, transaction);
+    await audit({ action: input.flagged ? 'review-caption-flagged' : 'review-caption-unflagged', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: item.id, detail: input.flagged ? { note: input.note.trim() } : {} }, transaction);
   });
   return panel;
 }
@@ -384,7 +365,7 @@ export async function skipItem(sequelize: Sequelize, actor: Actor, itemId: numbe
   await sequelize.transaction(async (transaction) => {
     await itemOr404(itemId, transaction);
     await sequelize.query('INSERT INTO review_skips (item_id, user_id, skipped_at) VALUES (:itemId, :userId, NOW(3)) ON DUPLICATE KEY UPDATE skipped_at = NOW(3)', { replacements: { itemId, userId: actor.id }, transaction });
-    await reviewAudit({ action: 'review-item-skipped', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId }, transaction);
+    await audit({ action: 'review-item-skipped', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId }, transaction);
   });
 }
 
@@ -410,7 +391,7 @@ export async function promoteToExample(sequelize: Sequelize, storage: Storage, a
     await example.destroy();
     throw new HttpProblem(422, 'Could not read the scan', `${item.identifier}: ${(err as Error).message}`, { type: '/problems/scan-not-decodable' });
   }
-  await reviewAudit({ action: 'review-example-promoted', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId, detail: { subjectId, subjectLabel: subject.prefLabel, exampleId: example.id, embedderId: embedder.id } });
+  await audit({ action: 'review-example-promoted', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId, detail: { subjectId, subjectLabel: subject.prefLabel, exampleId: example.id, embedderId: embedder.id } });
   return { exampleId: example.id, created: true };
 }
 
@@ -590,7 +571,7 @@ export async function setDoubleReviewShare(sequelize: Sequelize, actor: Actor, c
       'INSERT INTO review_settings (collection_id, double_review_share, updated_by, updated_at) VALUES (:collectionId, :share, :actor, NOW(3)) ON DUPLICATE KEY UPDATE double_review_share = VALUES(double_review_share), updated_by = VALUES(updated_by), updated_at = NOW(3)',
       { replacements: { collectionId, share, actor: actor.id }, transaction },
     );
-    await reviewAudit({ action: 'review-settings-changed', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: collectionId, detail: { doubleReviewShare: { from: before, to: share } } }, transaction);
+    await audit({ action: 'review-settings-changed', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: collectionId, detail: { doubleReviewShare: { from: before, to: share } } }, transaction);
   });
   return share;
 }
@@ -639,7 +620,7 @@ export async function recordSecondReview(sequelize: Sequelize, actor: Actor, ite
     ];
     try {
       const row = await SecondReview.create({ itemId, reviewerId: actor.id, firstReviewerId: item.approvedBy, judgements }, { transaction });
-      await reviewAudit({ action: 'review-second-recorded', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId, detail: { present: input.present.length, absent: input.absent.length } }, transaction);
+      await audit({ action: 'review-second-recorded', actorId: actor.id, ip: actor.ip, targetType: 'item', targetId: itemId, detail: { present: input.present.length, absent: input.absent.length } }, transaction);
       return { id: row.id };
     } catch (err) {
       if (err instanceof UniqueConstraintError) throw new HttpProblem(409, 'Already reviewed twice', `${item.identifier} already has its second review.`, { type: '/problems/already-reviewed-twice' });
