@@ -76,7 +76,8 @@ describe('a night-shift run', () => {
     expect(done?.counts).toMatchObject({ ingested: 6, rejected: 1, duplicates: 0, embedded: 6 });
     const report = done!.report as unknown as RunReport;
     expect(report.rejected).toEqual([{ fileName: 'notes.jpg', reason: expect.stringMatching(/not .*(image|JPEG|PNG)/i) }]);
-    expect(Object.values(report.stages).map((s) => s.state)).toEqual(['done', 'done', 'done', 'done', 'done']);
+    // ingest, embed, text (opt-in, off here), retrain, suggest, digest
+    expect(Object.values(report.stages).map((s) => s.state)).toEqual(['done', 'done', 'skipped', 'done', 'done', 'done']);
     // processed files are moved aside, never deleted
     expect(readdirSync(drop).sort()).toEqual(['processed', 'rejected']);
     expect(readdirSync(join(drop, 'processed'))).toHaveLength(6);

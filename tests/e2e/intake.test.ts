@@ -103,7 +103,8 @@ describe('the Intake screen in a real browser', () => {
     expect(onButton).toBe(true);
     // a headless page that lost focus to another test's page ignores key presses: bring it to the front first
     await page.bringToFront();
-    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.keyboard.press('Enter')]);
+    // press Enter on the focused button itself, so a re-render between the Tab and the key cannot swallow it
+    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.getByRole('button', { name: 'Choose scans…' }).press('Enter')]);
     expect(chooser.isMultiple()).toBe(true);
     await chooser.setFiles([{ name: 'east-pier-again.jpg', mimeType: 'image/jpeg', buffer: await harbourScan(1800, 1200) }]);
     await outcomeOf(page, 'east-pier-again.jpg').getByText('Already there').waitFor();
