@@ -3,11 +3,11 @@
 // (ingest with embedding overlapping it → embed catch-up → retrain → suggest → digest) through the real worker
 // code against MariaDB (the database CARTOUCHE_DB_NAME names), once per embedding-thread count. Prints, per
 // thread count: seconds per stage (ingest and embed overlap, so their sum exceeds the total), scans/s end to
-// end, CPU seconds used by the process (all threads) against wall time, peak RSS, and the machine's load
+// end, CPU seconds used by the process (all threads) against wall time, MariaDB's CPU per scan, peak RSS, and the machine's load
 // average before and after (the machine may be shared). The embedder is the configured one
 // (CARTOUCHE_EMBEDDER / CARTOUCHE_EMBEDDER_CONFIG); its id is printed. The bench collection, its files and its
 // storage are removed afterwards. Needs MariaDB running: `node scripts/bootstrap.mjs db`.
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { loadavg } from 'node:os';
 import { join } from 'node:path';
@@ -35,6 +35,21 @@ const config = { ...loadConfig({ ...process.env, CARTOUCHE_STORAGE_DIR: join(ben
 const mailer = { sent: 0, async send() { this.sent++; return { messageId: 'bench' }; } };
 const sequelize = openDatabase(config.db, { pool: 4 });
 const storage = new Storage(config.storageDir);
+
+/** CPU seconds the MariaDB server has used so far (its process found by name under /proc), or null when not found. */
+function mariadbCpuS(): number | null {
+  for (const pid of readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
+    try {
+      const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      if (!/\((mariadbd|mysqld)\)/.test(stat)) continue;
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      return (Number(fields[11]) + Number(fields[12])) / 100; // utime + stime, in clock ticks of 1/100 s
+    } catch {
+      // a process that ended while it was read
+    }
+  }
+  return null;
+}
 
 async function makeScans(dir: string): Promise<void> {
   mkdirSync(dir, { recursive: true });
@@ -73,10 +88,12 @@ async function once(threads: number): Promise<Record<string, string | number>> {
     const worker = new NightShiftWorker({ sequelize, tasks: createTasks({ config, pool: async () => pool, mailer }) });
     const loadBefore = loadavg()[0]!;
     const cpu0 = process.cpuUsage();
+    const db0 = mariadbCpuS();
     const start = performance.now();
     await worker.runOnce();
     const totalS = (performance.now() - start) / 1000;
     const cpu = process.cpuUsage(cpu0);
+    const db1 = mariadbCpuS();
     clearInterval(sampler);
     const done = await Run.findByPk(run.id);
     const report = done!.report as unknown as RunReport;
@@ -92,6 +109,7 @@ async function once(threads: number): Promise<Record<string, string | number>> {
     row['CPU s (all threads)'] = ((cpu.user + cpu.system) / 1e6).toFixed(1);
     // what one scan costs this process whatever the machine's load (MariaDB's own CPU is not counted)
     row['CPU ms/scan'] = Math.round((cpu.user + cpu.system) / 1e3 / N);
+    row['MariaDB CPU ms/scan'] = db0 === null || db1 === null ? 'n/a' : Math.round(((db1 - db0) * 1000) / N);
     row['peak RSS MB'] = Math.round(peak / 1e6);
     row['load before/after'] = `${loadBefore.toFixed(2)}/${loadavg()[0]!.toFixed(2)}`;
     row['generate s'] = genS.toFixed(1);
@@ -136,13 +154,15 @@ async function breakdown(samples: number): Promise<Array<Record<string, string |
     const bytes = await Promise.all(files.map((f) => readFile(f)));
     const deps = { sequelize, storage, limits: intakeLimits() };
     // each step decodes bytes it has not decoded before (libvips keeps recent operations in a cache)
-    await step('intake: one decode → review image, thumbnail, embedding input', (i) => makeDerivatives(bytes[i]!, 1e8, DEFAULT_SIZES, { embedInput: true }));
-    await step('intake: whole file (read, hash, sniff, derivatives, store, database)', (i) => ingestFile(deps, { collectionId: collection.id, fileName: `b-${i}.jpg`, source: { path: files[i]! }, origin: 'drop-folder', embedInput: true }));
+    await step('intake decode, drop folder: thumbnail and embedding input only (shrink on load)', (i) => makeDerivatives(bytes[i]!, 1e8, DEFAULT_SIZES, { embedInput: true, view: false }));
+    await step('intake decode, upload: review image, thumbnail, embedding input', (i) => makeDerivatives(bytes[i]!, 1e8, DEFAULT_SIZES, { embedInput: true }));
+    await step('intake: whole file from the drop folder (read, hash, sniff, decode, store, database)', (i) => ingestFile(deps, { collectionId: collection.id, fileName: `b-${i}.jpg`, source: { path: files[i]! }, origin: 'drop-folder', embedInput: true }));
+    await step('intake: whole file, review image made at once (as an upload)', (i) => ingestFile(deps, { collectionId: collection.id, fileName: `c-${i}.jpg`, source: { buffer: Buffer.concat([bytes[i]!, Buffer.from([0xff, 0xd9])]) } /* other bytes than the step before: no duplicate */, origin: 'upload', embedInput: true }));
     const derived = await Promise.all(bytes.map((b) => makeDerivatives(b, 1e8, DEFAULT_SIZES, { embedInput: true })));
     const embed = (b: Buffer) => pool.embedAll([b], async (x) => x, async () => {});
     await step(`embed (${pool.embedder.id}, 1 thread): the small input from intake`, (i) => embed(derived[i]!.embedInput!));
-    await step('embed: the review image (what the embed stage reads for a scan without one)', (i) => embed(derived[i]!.view));
-    await step('embed: the original scan', (i) => embed(bytes[i]!));
+    await step('embed: the review image', (i) => embed(derived[i]!.view!));
+    await step('embed: the original scan (what the embed stage reads for a scan without a small input)', (i) => embed(bytes[i]!));
   } finally {
     pool.dispose();
     await collection.destroy();

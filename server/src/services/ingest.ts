@@ -73,6 +73,13 @@ export interface IngestRequest {
   origin: IngestOrigin;
   /** also return a small lossless image of the scan for the embedder (the night shift embeds it at once) */
   embedInput?: boolean;
+  /**
+   * when the review-size image is made: at once (the default for uploads: the person who sent the file is about
+   * to look at it), or when it is first needed — opened at the desk, read for text, put in a IIIF manifest — which
+   * is the default for the drop folder: the night shift then decodes each scan at thumbnail size only, about a
+   * third of the work (bench:nightshift).
+   */
+  reviewImage?: 'now' | 'when-needed';
 }
 
 /**
@@ -158,7 +165,8 @@ export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<
 
   let derived: Awaited<ReturnType<typeof makeDerivatives>>;
   try {
-    derived = await makeDerivatives(source, deps.limits.maxPixels, deps.sizes ?? DEFAULT_SIZES, { embedInput: req.embedInput });
+    const view = (req.reviewImage ?? (req.origin === 'drop-folder' ? 'when-needed' : 'now')) === 'now';
+    derived = await makeDerivatives(source, deps.limits.maxPixels, deps.sizes ?? DEFAULT_SIZES, { embedInput: req.embedInput, view });
   } catch (err) {
     const message = decoderMessage(err);
     if (/pixel limit/i.test(message)) return reject('too-many-pixels', tooManyPixels(meta.width, meta.height, deps.limits.maxPixels));
@@ -175,7 +183,8 @@ export async function ingestFile(deps: IngestDeps, req: IngestRequest): Promise<
 
   if (typeof source === 'string') await putFile(deps.storage, source, key);
   else await deps.storage.put(source);
-  const [thumbKey, viewKey] = [await deps.storage.put(derived.thumb), await deps.storage.put(derived.view)];
+  const thumbKey = await deps.storage.put(derived.thumb);
+  const viewKey = derived.view ? await deps.storage.put(derived.view) : null;
   const upright = meta.autoOrient ?? { width: meta.width, height: meta.height };
 
   const wanted = req.identifier ? cleanIdentifier(req.identifier) : '';
@@ -250,9 +259,11 @@ export function tooLargeReason(byteSize: number, maxBytes: number): string {
 }
 
 /**
- * The derivative keys of an item, making them from its stored original when it has none yet (items that
- * arrived before derivatives were made at intake, e.g. loaded demo data). Changes only the two keys, not the
- * item's version: no editor's copy becomes stale because a thumbnail was made.
+ * The derivative keys of an item, making what it lacks from its stored original: both for items that arrived
+ * before derivatives were made at intake (e.g. loaded demo data), the review image alone for scans the night
+ * shift took from a drop folder (it makes that one when first needed); a thumbnail it has is kept. Changes only
+ * the keys, not the item's version: no editor's copy becomes stale because a thumbnail was made. Two requests
+ * at once both make the same bytes under the same content key, so either may win.
  */
 export async function ensureDerivatives(deps: IngestDeps, item: Pick<Item, 'id' | 'fileKey' | 'thumbKey' | 'viewKey'>): Promise<{ thumbKey: string; viewKey: string }> {
   if (item.thumbKey && item.viewKey) return { thumbKey: item.thumbKey, viewKey: item.viewKey };
@@ -265,8 +276,8 @@ export async function ensureDerivatives(deps: IngestDeps, item: Pick<Item, 'id' 
   } catch (err) {
     throw new HttpProblem(422, 'Scan not decodable', `The stored scan of item ${item.id} cannot be decoded (${decoderMessage(err)}).`, { type: '/problems/scan-not-decodable' });
   }
-  const thumbKey = await deps.storage.put(derived.thumb);
-  const viewKey = await deps.storage.put(derived.view);
+  const thumbKey = item.thumbKey ?? (await deps.storage.put(derived.thumb));
+  const viewKey = await deps.storage.put(derived.view!);
   await deps.sequelize.query('UPDATE items SET thumb_key = :thumbKey, view_key = :viewKey WHERE id = :id', { replacements: { thumbKey, viewKey, id: item.id } });
   return { thumbKey, viewKey };
 }
