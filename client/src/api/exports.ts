@@ -1,43 +1,15 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { http, unexpectedShape } from './http';
 import { queryKeys } from './query-keys';
+import type { ExportKind, ExportView, LedgerMailView } from '../../../common/api/exports.ts';
 
 /** Exports of a collection (coverage ledger, items CSV, XMP sidecars, IIIF manifest) and the weekly ledger mail. */
 
-export const EXPORT_KINDS = ['ledger_xlsx', 'items_csv', 'xmp_zip', 'iiif_manifest'] as const;
-export type ExportKind = (typeof EXPORT_KINDS)[number];
-export type ExportStatus = 'queued' | 'running' | 'ready' | 'failed';
-
-export interface ExportEntry {
-  id: number;
-  collectionId: number | null;
-  kind: ExportKind;
-  label: string;
-  periodFrom: string | null;
-  periodTo: string | null;
-  status: ExportStatus;
-  trigger: 'manual' | 'weekly';
-  rowCount: number | null;
-  byteSize: number | null;
-  fileName: string | null;
-  progress: { done: number; total: number | null } | null;
-  requestedBy: { id: number; name: string } | null;
-  error: string | null;
-  createdAt: string;
-  finishedAt: string | null;
-  mailedAt: string | null;
-  downloadUrl: string | null;
-}
-
-export interface LedgerMail {
-  enabled: boolean;
-  /** ISO weekday, 1 Monday … 7 Sunday */
-  weekday: number;
-  weekdayName: string;
-  hour: number;
-  timeZone: string;
-  nextSendAt: string | null;
-}
+export { EXPORT_KINDS, type ExportKind, type ExportStatus } from '../../../common/api/exports.ts';
+/** one export as the list shows it (the server's ExportView) */
+export type ExportEntry = ExportView;
+/** the weekly ledger mail settings with the weekday in words and the next sending */
+export type LedgerMail = LedgerMailView;
 
 /** How often the list is asked for again while an export is being built. */
 export const EXPORT_POLL_MS = 2000;

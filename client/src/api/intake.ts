@@ -1,6 +1,7 @@
 import { queryOptions, useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { ApiError, http, unexpectedShape, type ProblemDetails, type ProblemFieldError } from './http';
 import { queryKeys } from './query-keys';
+import type { ImportColumn, ImportPreview } from '../../../common/api/metadata-import.ts';
 import { sessionQueryOptions } from './session';
 
 /**
@@ -199,44 +200,7 @@ export const viewUrl = (itemId: number) => `/api/items/${itemId}/view`;
 
 // ------------------------------------------------------------------ catalogue sheets
 
-export type ImportColumn = 'identifier' | 'fileName' | 'caption' | 'creator' | 'dateText' | 'rights';
-export type ImportField = Exclude<ImportColumn, 'fileName'>;
-
-export interface PreviewRow {
-  row: number;
-  identifier: string | null;
-  fileName: string | null;
-  status: 'change' | 'unchanged' | 'problem';
-  item: { id: number; identifier: string; fileName: string; version: number } | null;
-  matchedBy: 'identifier' | 'file name' | 'identifier and file name' | null;
-  changes: Array<{ field: ImportField; from: string | null; to: string }>;
-  problem: { code: string; message: string } | null;
-}
-
-export interface ImportPreview {
-  id: number;
-  collectionId: number;
-  sourceName: string;
-  format: 'csv' | 'xlsx';
-  status: 'previewed' | 'applied';
-  createdAt: string;
-  appliedAt: string | null;
-  columns: {
-    mapped: Array<{ column: string; field: ImportColumn }>;
-    ignored: string[];
-    headerRow: number;
-    sheetName?: string;
-    encoding?: string;
-    delimiter?: string;
-  };
-  summary: { rows: number; changes: number; unchanged: number; problems: number };
-  rows: PreviewRow[];
-  result: {
-    applied: number;
-    refused: number;
-    rows: Array<{ row: number; itemId: number; identifier: string; outcome: 'applied' | 'stale' | 'gone' | 'identifier-taken'; message: string }>;
-  } | null;
-}
+export type { ImportColumn, ImportField, ImportPreview, PreviewRow } from '../../../common/api/metadata-import.ts';
 
 function readImport(body: unknown, path: string): ImportPreview {
   const value = isRecord(body) ? body.import : undefined;

@@ -1,9 +1,8 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
-export const EXPORT_KINDS = ['ledger_xlsx', 'items_csv', 'xmp_zip', 'iiif_manifest'] as const;
-export type ExportKind = (typeof EXPORT_KINDS)[number];
-export const EXPORT_STATUSES = ['queued', 'running', 'ready', 'failed'] as const;
-export type ExportStatus = (typeof EXPORT_STATUSES)[number];
+import { EXPORT_KINDS, EXPORT_STATUSES, type ExportKind, type ExportStatus } from '../../../common/api/exports.ts';
+
+export { EXPORT_KINDS, EXPORT_STATUSES, type ExportKind, type ExportStatus };
 
 /** A requested export (coverage ledger, CSV, XMP sidecars, IIIF manifest) and the stored file it produced. */
 export class ExportFile extends Model<InferAttributes<ExportFile>, InferCreationAttributes<ExportFile>> {

@@ -7,7 +7,7 @@ import { parse } from '../http/validate.ts';
 import { Collection, ExportFile } from '../models/index.ts';
 import { EXPORT_KINDS } from '../models/export-file.ts';
 import { KIND_INFO, getExportView, listExports, requestExport } from '../services/exports/index.ts';
-import { WEEKDAY_NAMES, ledgerMailSettings, nextSendAt, saveLedgerMailSettings } from '../services/exports/weekly.ts';
+import { ledgerMailSettings, ledgerMailView, saveLedgerMailSettings } from '../services/exports/weekly.ts';
 import { Storage } from '../services/storage.ts';
 
 const idParam = z.object({ id: z.coerce.number().int().positive() });
@@ -79,13 +79,13 @@ export function registerExportRoutes(api: GuardedRouter, ctx: AppContext): void 
   api.route('get', '/collections/:id/ledger-mail', read, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const settings = await ledgerMailSettings(await collectionOf(id));
-    res.set('Cache-Control', 'no-store').json({ ledgerMail: { ...settings, weekdayName: WEEKDAY_NAMES[settings.weekday - 1], nextSendAt: nextSendAt(new Date(), settings)?.toISOString() ?? null } });
+    res.set('Cache-Control', 'no-store').json({ ledgerMail: ledgerMailView(settings) });
   });
 
   api.route('put', '/collections/:id/ledger-mail', needs('exports:schedule'), async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const body = parse(mailBody, req.body, 'body');
     const settings = await saveLedgerMailSettings(await collectionOf(id), body, currentUser(req).id);
-    res.json({ ledgerMail: { ...settings, weekdayName: WEEKDAY_NAMES[settings.weekday - 1], nextSendAt: nextSendAt(new Date(), settings)?.toISOString() ?? null } });
+    res.json({ ledgerMail: ledgerMailView(settings) });
   });
 }

@@ -5,6 +5,21 @@ import { audit } from './audit.ts';
 import { openCollection } from './ingest.ts';
 import { IDENTIFIER_MAX, baseName, cleanIdentifier } from './ingest/identifier.ts';
 import { readSheet, type Sheet } from './ingest/sheet.ts';
+import {
+  IMPORT_FIELDS,
+  type ApplyResultRow,
+  type FieldChange,
+  type ImportColumn,
+  type ImportColumns,
+  type ImportField,
+  type ImportPreview,
+  type ImportResult,
+  type ImportSummary,
+  type PreviewRow,
+  type ProblemCode,
+} from '../../../common/api/metadata-import.ts';
+
+export { IMPORT_FIELDS, type ApplyResultRow, type FieldChange, type ImportColumns, type ImportField, type ImportPreview, type ImportResult, type ImportSummary, type PreviewRow, type ProblemCode };
 
 /**
  * Catalogue metadata from a CSV or XLSX sheet: each row is matched to an item of the collection by its
@@ -14,9 +29,7 @@ import { readSheet, type Sheet } from './ingest/sheet.ts';
  */
 
 /** The item fields a sheet can fill. */
-export const IMPORT_FIELDS = ['identifier', 'caption', 'creator', 'dateText', 'rights'] as const;
-export type ImportField = (typeof IMPORT_FIELDS)[number];
-type Column = ImportField | 'fileName';
+type Column = ImportColumn;
 
 export const FIELD_LABELS: Record<Column, string> = {
   identifier: 'Identifier',
@@ -64,71 +77,6 @@ export function normaliseHeader(text: string): string {
 const aliasIndex = new Map<string, Column>(
   (Object.entries(COLUMN_ALIASES) as Array<[Column, readonly string[]]>).flatMap(([col, names]) => names.map((n) => [normaliseHeader(n), col] as [string, Column])),
 );
-
-export type ProblemCode = 'empty-row' | 'no-key' | 'no-match' | 'mismatch' | 'ambiguous' | 'too-long' | 'duplicate-row' | 'conflicting-rows' | 'identifier-taken';
-
-export interface FieldChange {
-  field: ImportField;
-  from: string | null;
-  to: string;
-}
-
-export interface PreviewRow {
-  /** the row number as a spreadsheet program shows it (the header is usually row 1) */
-  row: number;
-  identifier: string | null;
-  fileName: string | null;
-  status: 'change' | 'unchanged' | 'problem';
-  /** the matched item as it was when the preview was made */
-  item: { id: number; identifier: string; fileName: string; version: number } | null;
-  matchedBy: 'identifier' | 'file name' | 'identifier and file name' | null;
-  changes: FieldChange[];
-  problem: { code: ProblemCode; message: string } | null;
-}
-
-export interface ImportColumns {
-  mapped: Array<{ column: string; field: Column }>;
-  ignored: string[];
-  headerRow: number;
-  sheetName?: string;
-  encoding?: string;
-  delimiter?: string;
-}
-
-export interface ImportSummary {
-  rows: number;
-  changes: number;
-  unchanged: number;
-  problems: number;
-}
-
-export interface ApplyResultRow {
-  row: number;
-  itemId: number;
-  identifier: string;
-  outcome: 'applied' | 'stale' | 'gone' | 'identifier-taken';
-  message: string;
-}
-
-export interface ImportResult {
-  applied: number;
-  refused: number;
-  rows: ApplyResultRow[];
-}
-
-export interface ImportPreview {
-  id: number;
-  collectionId: number;
-  sourceName: string;
-  format: 'csv' | 'xlsx';
-  status: 'previewed' | 'applied';
-  createdAt: string;
-  appliedAt: string | null;
-  columns: ImportColumns;
-  summary: ImportSummary;
-  rows: PreviewRow[];
-  result: ImportResult | null;
-}
 
 export function toPreview(batch: ImportBatch): ImportPreview {
   return {

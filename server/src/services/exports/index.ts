@@ -6,7 +6,7 @@ import { dirname, join } from 'node:path';
 import { Op, type Sequelize } from 'sequelize';
 import { HttpProblem } from '../../http/problem.ts';
 import { Collection, ExportFile, Job, User } from '../../models/index.ts';
-import type { ExportKind } from '../../models/export-file.ts';
+import type { ExportKind, ExportView } from '../../../../common/api/exports.ts';
 import { sha256OfFile } from '../ingest/store-file.ts';
 import { intakeLimits } from '../ingest.ts';
 import type { Storage } from '../storage.ts';
@@ -15,6 +15,8 @@ import { writeItemsCsv } from './csv.ts';
 import { writeManifest } from './iiif.ts';
 import { writeLedger } from './ledger.ts';
 import { writeXmpZip } from './xmp.ts';
+
+export type { ExportView };
 
 /** The job kind that builds an export. */
 export const EXPORT_JOB = 'export-build';
@@ -25,28 +27,6 @@ export const KIND_INFO: Record<ExportKind, { label: string; extension: string; m
   xmp_zip: { label: 'XMP sidecars', extension: 'zip', mimeType: 'application/zip' },
   iiif_manifest: { label: 'IIIF manifest', extension: 'json', mimeType: 'application/ld+json' },
 };
-
-export interface ExportView {
-  id: number;
-  collectionId: number | null;
-  kind: ExportKind;
-  label: string;
-  periodFrom: string | null;
-  periodTo: string | null;
-  status: ExportFile['status'];
-  trigger: 'manual' | 'weekly';
-  rowCount: number | null;
-  byteSize: number | null;
-  fileName: string | null;
-  /** rows written so far while the job runs, and how many there will be */
-  progress: { done: number; total: number | null } | null;
-  requestedBy: { id: number; name: string } | null;
-  error: string | null;
-  createdAt: string;
-  finishedAt: string | null;
-  mailedAt: string | null;
-  downloadUrl: string | null;
-}
 
 export function exportView(e: ExportFile, job?: Job | null, requester?: User | null): ExportView {
   const p = job?.progress as { done?: number; total?: number | null } | null | undefined;

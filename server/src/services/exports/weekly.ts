@@ -8,20 +8,14 @@ import type { Storage } from '../storage.ts';
 import { ledgerFigures } from './figures.ts';
 import { KIND_INFO, buildExport, exportFileName } from './index.ts';
 import { addDays, isoWeek, periodInstants, previousWeek, startOfDay, wallClock } from './time.ts';
+import type { LedgerMailSettings, LedgerMailView } from '../../../../common/api/exports.ts';
 
 export const WEEKLY_JOB = 'weekly-ledger';
 
 /** Attachments above this size are not attached; the mail links to the stored file instead. */
 export const MAX_ATTACHMENT_BYTES = 15 * 1024 * 1024;
 
-export interface LedgerMailSettings {
-  enabled: boolean;
-  /** ISO weekday, 1 Monday … 7 Sunday */
-  weekday: number;
-  hour: number;
-  /** the collection's time zone, in which weekday and hour are read */
-  timeZone: string;
-}
+export type { LedgerMailSettings };
 
 export const WEEKDAY_NAMES = ['Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday', 'Sunday'] as const;
 
@@ -145,4 +139,9 @@ export async function runWeeklyLedger(
   }
   await exp.update({ mailedAt: new Date() });
   return { exportId: exp.id, recipients: managers.length, attached: attach };
+}
+
+/** The settings as the API shows them: with the weekday in words and when the next mail goes. */
+export function ledgerMailView(settings: LedgerMailSettings, now: Date = new Date()): LedgerMailView {
+  return { ...settings, weekdayName: WEEKDAY_NAMES[settings.weekday - 1]!, nextSendAt: nextSendAt(now, settings)?.toISOString() ?? null };
 }
