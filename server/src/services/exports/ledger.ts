@@ -69,7 +69,7 @@ export function itemCells(item: ExportItem, timeZone: string): Record<(typeof IT
 
 type Sheet = ReturnType<ExcelJS.stream.xlsx.WorkbookWriter['addWorksheet']>;
 
-function header(ws: Sheet, columns: Array<{ header: string; key: string; width: number; numFmt?: string }>): void {
+function header(ws: Sheet, columns: Column[]): void {
   ws.columns = columns.map((c) => ({ header: c.header, key: c.key, width: c.width, ...(c.numFmt ? { style: { numFmt: c.numFmt } } : {}) }));
   const row = ws.getRow(1);
   row.font = { bold: true };
@@ -81,6 +81,15 @@ function finish(ws: Sheet, columns: number, rows: number): void {
   // the filter covers the header and every data row, as a spreadsheet program sets it
   ws.autoFilter = { from: { row: 1, column: 1 }, to: { row: Math.max(1, rows + 1), column: columns } };
   ws.commit();
+}
+
+type Column = { header: string; key: string; width: number; numFmt?: string };
+
+/** A sheet small enough to hold in memory (the per-subject and per-editor figures): header, rows, filter. */
+function smallSheet(ws: Sheet, columns: Column[], rows: Array<Record<string, unknown>>): void {
+  header(ws, columns);
+  for (const r of rows) ws.addRow(r).commit();
+  finish(ws, columns.length, rows.length);
 }
 
 const frozen = { views: [{ state: 'frozen' as const, xSplit: 0, ySplit: 1, topLeftCell: 'A2', activeCell: 'A2' }] };
@@ -136,54 +145,48 @@ export async function writeLedger(sequelize: Sequelize, req: LedgerRequest): Pro
 
   // ---- By subject
   const subjects = await subjectFigures(sequelize, req.collection.id, bounds);
-  const bySubject = wb.addWorksheet('By subject', frozen);
-  header(bySubject, [
-    { header: 'Subject', key: 'label', width: 28 },
-    { header: 'Kind', key: 'kind', width: 10 },
-    { header: 'Concept URI', key: 'conceptUri', width: 48 },
-    { header: 'Items with the subject', key: 'items', width: 14, numFmt: COUNT_FORMAT },
-    { header: 'Accepted in period', key: 'accepted', width: 14, numFmt: COUNT_FORMAT },
-    { header: 'Rejected in period', key: 'rejected', width: 14, numFmt: COUNT_FORMAT },
-    { header: 'Added by editors in period', key: 'added', width: 14, numFmt: COUNT_FORMAT },
-    { header: 'Waiting for review', key: 'waiting', width: 14, numFmt: COUNT_FORMAT },
-    { header: 'Precision in period', key: 'precision', width: 12, numFmt: PERCENT_FORMAT },
-  ]);
-  for (const s of subjects) {
-    bySubject
-      .addRow({
-        label: s.label,
-        kind: s.kind,
-        conceptUri: s.conceptUri,
-        items: s.items,
-        accepted: s.acceptedInPeriod,
-        rejected: s.rejectedInPeriod,
-        added: s.addedInPeriod,
-        waiting: s.waiting,
-        precision: precision(s.acceptedInPeriod, s.rejectedInPeriod),
-      })
-      .commit();
-  }
-  finish(bySubject, 9, subjects.length);
+  smallSheet(
+    wb.addWorksheet('By subject', frozen),
+    [
+      { header: 'Subject', key: 'label', width: 28 },
+      { header: 'Kind', key: 'kind', width: 10 },
+      { header: 'Concept URI', key: 'conceptUri', width: 48 },
+      { header: 'Items with the subject', key: 'items', width: 14, numFmt: COUNT_FORMAT },
+      { header: 'Accepted in period', key: 'accepted', width: 14, numFmt: COUNT_FORMAT },
+      { header: 'Rejected in period', key: 'rejected', width: 14, numFmt: COUNT_FORMAT },
+      { header: 'Added by editors in period', key: 'added', width: 14, numFmt: COUNT_FORMAT },
+      { header: 'Waiting for review', key: 'waiting', width: 14, numFmt: COUNT_FORMAT },
+      { header: 'Precision in period', key: 'precision', width: 12, numFmt: PERCENT_FORMAT },
+    ],
+    subjects.map((s) => ({
+      label: s.label,
+      kind: s.kind,
+      conceptUri: s.conceptUri,
+      items: s.items,
+      accepted: s.acceptedInPeriod,
+      rejected: s.rejectedInPeriod,
+      added: s.addedInPeriod,
+      waiting: s.waiting,
+      precision: precision(s.acceptedInPeriod, s.rejectedInPeriod),
+    })),
+  );
 
   // ---- By editor
   const editors = await editorFigures(sequelize, req.collection.id, bounds);
-  const byEditor = wb.addWorksheet('By editor', frozen);
-  header(byEditor, [
-    { header: 'Editor', key: 'name', width: 28 },
-    { header: 'Role', key: 'role', width: 11 },
-    { header: 'Items approved', key: 'approved', width: 12, numFmt: COUNT_FORMAT },
-    { header: 'of which decorative', key: 'decorative', width: 12, numFmt: COUNT_FORMAT },
-    { header: 'Subjects accepted', key: 'accepted', width: 12, numFmt: COUNT_FORMAT },
-    { header: 'Subjects rejected', key: 'rejected', width: 12, numFmt: COUNT_FORMAT },
-    { header: 'Subjects added', key: 'added', width: 12, numFmt: COUNT_FORMAT },
-    { header: 'Last activity in period', key: 'last', width: 18, numFmt: DATETIME_FORMAT },
-  ]);
-  for (const e of editors) {
-    byEditor
-      .addRow({ ...e, last: e.lastActivity ? asLocalCell(e.lastActivity, tz) : null })
-      .commit();
-  }
-  finish(byEditor, 8, editors.length);
+  smallSheet(
+    wb.addWorksheet('By editor', frozen),
+    [
+      { header: 'Editor', key: 'name', width: 28 },
+      { header: 'Role', key: 'role', width: 11 },
+      { header: 'Items approved', key: 'approved', width: 12, numFmt: COUNT_FORMAT },
+      { header: 'of which decorative', key: 'decorative', width: 12, numFmt: COUNT_FORMAT },
+      { header: 'Subjects accepted', key: 'accepted', width: 12, numFmt: COUNT_FORMAT },
+      { header: 'Subjects rejected', key: 'rejected', width: 12, numFmt: COUNT_FORMAT },
+      { header: 'Subjects added', key: 'added', width: 12, numFmt: COUNT_FORMAT },
+      { header: 'Last activity in period', key: 'last', width: 18, numFmt: DATETIME_FORMAT },
+    ],
+    editors.map((e) => ({ ...e, last: e.lastActivity ? asLocalCell(e.lastActivity, tz) : null })),
+  );
 
   // ---- Items, streamed
   const items = wb.addWorksheet('Items', frozen);
