@@ -3,6 +3,7 @@ import { createApp } from './app.ts';
 import { loadConfig } from './config.ts';
 import { openDatabase } from './db/index.ts';
 import { logger } from './logger.ts';
+import { processEmbedder } from './services/features.ts';
 import { ensureDevCertificates } from '../../scripts/dev-certs.ts';
 
 const config = loadConfig();
@@ -14,6 +15,10 @@ const app = createApp({ config, sequelize });
 const host = process.env.CARTOUCHE_API_HOST ?? '127.0.0.1';
 const server = app.listen(config.apiPort, host, () => {
   logger.info({ url: `http://${host}:${config.apiPort}/` }, 'Cartouche API listening');
+  // start the embedder now rather than at the first example upload: building the ONNX model (first start only)
+  // and checking it against TF.js on the probe image happen here, and /api/health says what came of it; a
+  // failure is logged (and shown in health) and the next use tries again
+  processEmbedder().catch(() => undefined);
 });
 server.on('error', (err) => {
   logger.fatal({ err }, 'API could not listen');
