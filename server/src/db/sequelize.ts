@@ -10,7 +10,9 @@ export function createSequelize(db: DbConfig, opts: { pool?: number } = {}): Seq
     dialect: 'mariadb',
     logging: (sql) => logger.trace({ sql }, 'sql'),
     pool: { max: opts.pool ?? 10, min: 0, idle: 10_000, acquire: 30_000 },
-    define: { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' },
+    // underscored maps the createdAt and updatedAt attributes to created_at and updated_at; naming the columns here
+    // as well would make a second attribute for each, and a saved instance would keep its old updatedAt
+    define: { underscored: true, timestamps: true },
     dialectOptions: { timezone: 'Z', connectTimeout: 10_000 },
     timezone: '+00:00',
   });
