@@ -6,6 +6,7 @@ import * as m0003 from './0003-intake.ts';
 import * as m0004 from './0004-weight-maps.ts';
 import * as m0005 from './0005-review.ts';
 import * as m0007 from './0007-ledger-exports.ts';
+import * as m0008 from './0008-collection-read-text.ts';
 
 export interface MigrationModule {
   up(params: MigrationParams<QueryInterface>): Promise<void>;
@@ -23,4 +24,5 @@ export const migrations: Array<[name: string, module: MigrationModule]> = [
   ['0004-weight-maps', m0004],
   ['0005-review', m0005],
   ['0007-ledger-exports', m0007],
+  ['0008-collection-read-text', m0008],
 ];

@@ -45,6 +45,11 @@ const altTextMaxLength = z
   .min(ALT_TEXT_LENGTH_RANGE.min, `At least ${ALT_TEXT_LENGTH_RANGE.min} characters.`)
   .max(ALT_TEXT_LENGTH_RANGE.max, `At most ${ALT_TEXT_LENGTH_RANGE.max} characters.`);
 const houseStyle = z.string().trim().max(10000, 'At most 10 000 characters.');
+/**
+ * Whether the night shift reads the text in the collection's scans (OCR). Optional: a new collection reads text
+ * (the column's default), and a save that leaves it out keeps what is stored.
+ */
+const readText = z.boolean({ error: 'Yes or no: true or false.' }).optional();
 
 /** POST /api/collections */
 export const collectionCreateSchema = z.object({
@@ -55,6 +60,7 @@ export const collectionCreateSchema = z.object({
   altTextLanguage,
   altTextMaxLength,
   houseStyle,
+  readText,
 });
 export type CollectionCreateInput = z.input<typeof collectionCreateSchema>;
 export type CollectionCreate = z.output<typeof collectionCreateSchema>;
@@ -86,6 +92,8 @@ export interface CollectionDetail {
   scheduleEnabled: boolean;
   /** '' when the collection has no drop folder */
   dropFolder: string;
+  /** the night shift reads the text in its scans (OCR); the site can still turn reading off everywhere */
+  readText: boolean;
   archivedAt: string | null;
   updatedAt: string;
   /** subjects whose alt-text phrase may go into an alt-text draft */

@@ -86,6 +86,26 @@ describe('collections: create, edit, archive', () => {
     expect((await archivist.agent.get('/api/collections').expect(200)).body.collections).toHaveLength(1);
   });
 
+  it('reads text in scans at night by default; the setting is saved with the others, and a save without it keeps it', async () => {
+    const c = (await post('/api/collections', quay).expect(201)).body.collection;
+    expect(c.readText).toBe(true);
+    const off = await put(`/api/collections/${c.id}`, { ...quay, readText: false, feedingSubjectIds: [], updatedAt: c.updatedAt }).expect(200);
+    expect(off.body.collection.readText).toBe(false);
+    expect((await Collection.findByPk(c.id))!.readText).toBe(false);
+    // a client that does not know the setting changes something else: reading stays off
+    // (saved with the updatedAt of the last answer, as the settings screen does without reloading: the answer
+    // carries the new updatedAt, so a second save in a row is not taken for someone else's change)
+    const renamed = await put(`/api/collections/${c.id}`, { ...quay, name: 'Quay negatives', feedingSubjectIds: [], updatedAt: off.body.collection.updatedAt }).expect(200);
+    expect(renamed.body.collection).toMatchObject({ name: 'Quay negatives', readText: false });
+    expect(renamed.body.collection.updatedAt).toBe((await archivist.agent.get(`/api/collections/${c.id}`).expect(200)).body.collection.updatedAt);
+    // a bad value is refused and changes nothing
+    const bad = await put(`/api/collections/${c.id}`, { ...quay, readText: 'no', feedingSubjectIds: [], updatedAt: renamed.body.collection.updatedAt }).expect(400);
+    expect(bad.body.errors.map((e: { path: string }) => e.path)).toEqual(['readText']);
+    expect((await Collection.findByPk(c.id))!.name).toBe('Quay negatives');
+    // a collection can also be made with reading off
+    expect((await post('/api/collections', { ...quay, slug: 'quay-prints', readText: false }).expect(201)).body.collection.readText).toBe(false);
+  });
+
   it('lets editors read the settings but not change them', async () => {
     const c = (await post('/api/collections', quay).expect(201)).body.collection;
     const editor = await signIn(app, 'editor');
@@ -104,6 +124,7 @@ describe('the same zod schemas refuse the same input in the browser and at the A
     ['an alt-text length below the minimum', { altTextMaxLength: 5 }, 'altTextMaxLength'],
     ['an alt-text length that is not a whole number', { altTextMaxLength: 99.5 }, 'altTextMaxLength'],
     ['a missing medium', { medium: '' }, 'medium'],
+    ['a text-reading switch that is not true or false', { readText: 'yes' }, 'readText'],
   ];
   for (const [what, change, field] of bad) {
     it(`refuses ${what} on both sides`, async () => {

@@ -50,6 +50,8 @@ async function until<T>(what: string, probe: () => Promise<T | null | undefined 
 describe('the night shift survives a killed worker', () => {
   it('a run whose worker is killed with SIGKILL mid-embedding is finished by the next worker, with nothing duplicated', async () => {
     const c = await makeCollection();
+    // this test is about embedding after a crash: reading text (nightshift.test.ts) is turned off by the setting
+    await c.update({ readText: false });
     const storage = new Storage(config.storageDir);
     const deps = { sequelize, storage, limits: intakeLimits({}) };
     const N = 120;

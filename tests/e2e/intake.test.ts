@@ -103,8 +103,14 @@ describe('the Intake screen in a real browser', () => {
     expect(onButton).toBe(true);
     // a headless page that lost focus to another test's page ignores key presses: bring it to the front first
     await page.bringToFront();
-    // press Enter on the focused button itself, so a re-render between the Tab and the key cannot swallow it
-    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.getByRole('button', { name: 'Choose scans…' }).press('Enter')]);
+    // the key only opens the chooser from an enabled, focused button: check both first, so a failure says which
+    const choose = page.getByRole('button', { name: 'Choose scans…' });
+    await expect.poll(() => choose.evaluate((b: HTMLButtonElement) => !b.disabled && document.activeElement === b && document.hasFocus())).toBe(true);
+    // start waiting for the chooser before the key goes down (the listener turns on the page's file-chooser
+    // interception), then press Enter on the focused button itself, so a re-render cannot swallow the key
+    const chooserShown = page.waitForEvent('filechooser', { timeout: 15_000 });
+    await choose.press('Enter');
+    const chooser = await chooserShown;
     expect(chooser.isMultiple()).toBe(true);
     await chooser.setFiles([{ name: 'east-pier-again.jpg', mimeType: 'image/jpeg', buffer: await harbourScan(1800, 1200) }]);
     await outcomeOf(page, 'east-pier-again.jpg').getByText('Already there').waitFor();

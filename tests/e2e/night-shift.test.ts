@@ -158,6 +158,10 @@ describe('the Night shift screen in a real browser', () => {
     expect(await flat(page, stage(page, runId, labels[0]!).innerText())).toContain('5 of 5');
     expect(await stage(page, runId, labels[0]!).getByRole('progressbar').getAttribute('aria-valuenow')).toBe('100');
     expect(await flat(page, stage(page, runId, labels[4]!).innerText())).toContain('Note: sent to 1 editor(s)');
+    // text is read (on by default) after the suggestions are made, before the digest
+    const reading = runDetail(page, runId).getByRole('listitem', { name: 'Stage 5: Find text in the scans', exact: true });
+    expect(await flat(page, reading.innerText())).toMatch(/Done .*Note: 4 read, \d+ mostly text/);
+    await runDetail(page, runId).getByRole('listitem', { name: 'Stage 6: Mail the digest', exact: true }).waitFor();
     const detail = await flat(page, runDetail(page, runId).innerText());
     expect(detail).toMatch(/Scans taken in 4 /);
     expect(detail).toMatch(/Files refused 1 /);

@@ -26,11 +26,29 @@ export interface AxeViolation {
 
 /** Runs axe-core (Deque's WCAG rules engine) in the page against WCAG 2.0, 2.1 and 2.2 levels A and AA. */
 export async function axeViolations(page: Page): Promise<AxeViolation[]> {
+  await settle(page);
   await page.addScriptTag({ content: axeSource });
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run(ctx: Document, opts: unknown): Promise<{ violations: AxeViolation[] }> } }).axe;
     const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } });
     return result.violations.map((v) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.map((n) => ({ target: n.target })) }));
+  });
+}
+
+/**
+ * Waits for the fonts and every finished CSS transition or animation of the document. A control that changes
+ * its colours in place (a button turning from primary to secondary) passes through low-contrast mixtures for
+ * its transition's length, and axe's color-contrast reads the colours of the moment it runs: on a loaded
+ * machine that moment can fall inside the transition. Endless animations (a loading pulse) are left to run.
+ */
+async function settle(page: Page): Promise<void> {
+  await page.evaluate(async () => {
+    await document.fonts.ready;
+    for (let round = 0; round < 5; round++) {
+      const running = document.getAnimations().filter((a) => (a.playState === 'running' || a.pending) && a.effect?.getTiming().iterations !== Infinity);
+      if (running.length === 0) break;
+      await Promise.all(running.map((a) => a.finished.catch(() => undefined)));
+    }
   });
 }
 

@@ -4,6 +4,21 @@ import { queryKeys } from './query-keys';
 
 export type WorkerState = 'running' | 'stale' | 'absent';
 
+/** The API process's embedder as /api/health reports it: which runtime turns images into features. */
+export interface EmbedderHealth {
+  /** what the settings ask for: the built-in backbone on onnx or tfjs, or a model named by a configuration file */
+  requested: 'onnx' | 'tfjs' | 'configured model';
+  /** idle: not needed yet (it starts with the first upload of examples); failed: it could not start */
+  state: 'idle' | 'starting' | 'ready' | 'failed';
+  id: string | null;
+  runtime: 'onnx' | 'tfjs' | null;
+  /** why the requested runtime is not the one in use */
+  fallbackReason: string | null;
+  /** ONNX against TF.js on the start-up probe image */
+  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
+  error?: string;
+}
+
 export interface Health {
   status: 'ok' | 'degraded';
   version: string;
@@ -17,6 +32,8 @@ export interface Health {
     lastHeartbeatAt: string | null;
     count: number;
   };
+  /** sent by every current server; a report without it (an older server during an upgrade) leaves the part out */
+  embedder?: EmbedderHealth;
 }
 
 /** How often the status line asks again while the page is open. */

@@ -11,7 +11,7 @@ import { queryKeys } from './query-keys';
 /** How often a queued or running run is asked for again. */
 export const POLL_MS = 2000;
 
-export const STAGE_NAMES = ['ingest', 'embed', 'text', 'retrain', 'suggest', 'digest'] as const;
+export const STAGE_NAMES = ['ingest', 'embed', 'retrain', 'suggest', 'text', 'digest'] as const;
 export type StageName = (typeof STAGE_NAMES)[number];
 export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 export type StageState = 'pending' | 'running' | 'done' | 'skipped';

@@ -12,11 +12,30 @@ import { FeedingSubjects } from '../components/collections/feeding-subjects';
 import { ScheduleFacts, ScheduleForm } from '../components/night-shift/schedule-settings';
 import { Button } from '../components/ui/button';
 import { Card } from '../components/ui/card';
+import { Checkbox } from '../components/ui/checkbox';
 import { Notice } from '../components/ui/notice';
 import { ProblemNotice } from '../components/ui/problem-notice';
 import { formatDateTime } from '../lib/format';
 
-const settingsOf = (c: CollectionDetail) => JSON.stringify([c.name, c.slug, c.description, c.medium, c.altTextLanguage, c.altTextMaxLength, c.houseStyle, c.feedingSubjectIds]);
+const settingsOf = (c: CollectionDetail) => JSON.stringify([c.name, c.slug, c.description, c.medium, c.altTextLanguage, c.altTextMaxLength, c.houseStyle, c.feedingSubjectIds, c.readText]);
+
+/** What reading text does and costs, in the settings form and in the read-only view. */
+const READ_TEXT_HELP =
+  'The night shift looks for printed or engraved words in each new scan (English), after it has made its suggestions. Words it finds make the item findable in the catalogue, are checked against the alt text and mark pages that are mostly text (WCAG 2.2 SC 1.4.5). They are offered to editors as a suggestion, not as a description. It costs about half a second of processor time per scan, once.';
+
+/** The collection's switch for reading text in its scans at night. */
+function ReadTextSetting({ value, onChange }: { value: boolean; onChange(next: boolean): void }) {
+  const helpId = useId();
+  return (
+    <fieldset className="space-y-3 rounded-card border-2 border-rule p-4">
+      <legend className="px-1 text-xl font-bold">Text in the scans</legend>
+      <Checkbox label="Read text in scans at night" checked={value} onChange={(e) => onChange(e.currentTarget.checked)} aria-describedby={helpId} />
+      <p id={helpId} className="max-w-prose text-sm text-muted">
+        {READ_TEXT_HELP}
+      </p>
+    </fieldset>
+  );
+}
 
 function SettingsForm({ detail, onReload }: { detail: CollectionDetail; onReload(): void }) {
   const update = useUpdateCollection();
@@ -24,6 +43,7 @@ function SettingsForm({ detail, onReload }: { detail: CollectionDetail; onReload
   const collection = useCollection(detail.id);
   const queryClient = useQueryClient();
   const [feeding, setFeeding] = useState<Set<number>>(() => new Set(detail.feedingSubjectIds));
+  const [readText, setReadText] = useState(detail.readText);
   const [saved, setSaved] = useState('');
   // the copy this form was opened from; saving the schedule below changes the stored time but not these settings
   const baseline = useRef(detail);
@@ -47,12 +67,13 @@ function SettingsForm({ detail, onReload }: { detail: CollectionDetail; onReload
         onStale={() => void collection.refetch().then(onReload)}
         save={async (values) => {
           setSaved('');
-          const c = await update.mutateAsync({ collectionId: detail.id, input: { ...values, feedingSubjectIds: [...feeding], updatedAt: baseline.current.updatedAt } });
+          const c = await update.mutateAsync({ collectionId: detail.id, input: { ...values, readText, feedingSubjectIds: [...feeding], updatedAt: baseline.current.updatedAt } });
           baseline.current = c;
           setSaved(`Saved at ${formatDateTime(c.updatedAt)}.`);
         }}
       >
         <FeedingSubjects subjects={subjects.data ?? []} value={feeding} onChange={setFeeding} />
+        <ReadTextSetting value={readText} onChange={setReadText} />
       </CollectionForm>
     </>
   );
@@ -111,6 +132,10 @@ export function CollectionSettingsRoute() {
               </dd>
               <dt className="font-bold">House style</dt>
               <dd className="whitespace-pre-line">{c.houseStyle || 'none'}</dd>
+              <dt className="font-bold">Text in the scans</dt>
+              <dd className="max-w-prose">
+                {c.readText ? 'Read at night.' : 'Not read at night.'} <span className="text-sm text-muted">{READ_TEXT_HELP}</span>
+              </dd>
             </dl>
           )}
         </Card>

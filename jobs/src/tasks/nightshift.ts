@@ -7,7 +7,7 @@ import { createMailer, type Mailer } from '../../../server/src/mail/mailer.ts';
 import { Collection, Embedding, Run, User } from '../../../server/src/models/index.ts';
 import { storeEmbedding } from '../../../server/src/services/features.ts';
 import { ingestFile, intakeLimits } from '../../../server/src/services/ingest.ts';
-import { ocrPendingItems } from '../../../server/src/services/ocr.ts';
+import { ocrPendingItems, ocrWorkers } from '../../../server/src/services/ocr.ts';
 import { EmbedFeeder, inLanes } from '../../../server/src/services/ingest/pipeline.ts';
 import { featureToBuffer } from '../../../server/src/ml/index.ts';
 import { emptyCounts, emptyReport, STAGES, type RunCounts, type RunReport, type Stage } from '../../../server/src/services/runs.ts';
@@ -41,6 +41,17 @@ export function ingestLanes(env: NodeJS.ProcessEnv = process.env): number {
   return n;
 }
 
+/**
+ * The site-wide switch for the text stage: `CARTOUCHE_NIGHTSHIFT_OCR=off` turns text reading off for every
+ * collection; unset (or `on`) leaves it to each collection's setting ("read text in scans at night").
+ */
+export function siteReadsText(env: NodeJS.ProcessEnv = process.env): boolean {
+  const raw = env.CARTOUCHE_NIGHTSHIFT_OCR;
+  if (raw === undefined || raw === '' || raw === 'on') return true;
+  if (raw === 'off') return false;
+  throw new Error(`CARTOUCHE_NIGHTSHIFT_OCR must be "off" (no text reading anywhere) or "on"/unset (each collection's setting decides), got "${raw}"`);
+}
+
 /** What every stage of a run works with. */
 interface RunContext {
   sequelize: Sequelize;
@@ -58,28 +69,32 @@ interface RunContext {
 type StageHandler = (ctx: RunContext, s: StageRunner) => Promise<void>;
 
 /**
- * The stages, in the order of STAGES (services/runs.ts). A new stage — text in images (OCR) between embed and
- * retrain, say — is a name added to STAGES and a handler here; the type makes both go together. Every handler
- * must be idempotent: a run taken over after its worker died calls it again from the start.
+ * The stages, in the order of STAGES (services/runs.ts). A new stage is a name added to STAGES and a handler
+ * here; the type makes both go together. Every handler must be idempotent: a run taken over after its worker
+ * died calls it again from the start.
  */
 const STAGE_HANDLERS: Record<Stage, StageHandler> = {
   ingest: ingestStage,
   embed: embedStage,
-  text: textStage,
   retrain: retrainStage,
   suggest: suggestStage,
+  text: textStage,
   digest: digestStage,
 };
 
 /**
  * One night-shift run: ingest (drop folder, with embedding overlapping it) → embed (whatever is still without a
- * feature) → retrain (the weight map, then the subject models) → suggest → digest. Each stage is idempotent and
+ * feature) → retrain (the weight map, then the subject models) → suggest → text (OCR, the slow part, once the
+ * suggestions are out) → digest. Each stage is idempotent and
  * records when it is done, so a run taken over after its worker died (lease expired) skips the stages that
  * finished and redoes at most the batch that was in flight — with no duplicate item or suggestion, because
  * items are keyed by content hash, features by (owner, embedder), weight maps by their inputs' fingerprint and
  * suggestions by (item, subject).
  */
 export function nightShiftTask(deps: NightShiftDeps): TaskHandler {
+  // a misspelt switch is refused when the worker starts, not found at night
+  siteReadsText();
+  ocrWorkers();
   const storage = new Storage(deps.config.storageDir);
   const mailer = deps.mailer ?? createMailer(deps.config);
 
@@ -90,7 +105,9 @@ export function nightShiftTask(deps: NightShiftDeps): TaskHandler {
     if (run.status === 'cancelled' || run.status === 'succeeded') return { runId, skipped: run.status };
     const collection = await Collection.findByPk(run.collectionId);
     if (!collection) throw new Error(`collection ${run.collectionId} does not exist`);
-    const report: RunReport = { ...emptyReport(), ...((run.report as unknown as RunReport | null) ?? {}) };
+    const stored = (run.report as unknown as Partial<RunReport> | null) ?? {};
+    // a run recorded before a stage existed has no entry for it: that stage is still to do
+    const report: RunReport = { ...emptyReport(), ...stored, stages: { ...emptyReport().stages, ...(stored.stages ?? {}) } };
     const counts: RunCounts = { ...emptyCounts(), ...(run.counts as RunCounts) };
     await run.update({ status: 'running', startedAt: run.startedAt ?? new Date() });
 
@@ -301,23 +318,6 @@ async function embedStage(ctx: RunContext, s: StageRunner): Promise<void> {
 }
 
 /** The weight map first (only when the decisions about its training subjects changed), then the subject models. */
-/**
- * Text in the images (OCR, English): read once per item and engine, offered to editors at the desk and checked
- * against the alt text there. Opt-in for now (`CARTOUCHE_NIGHTSHIFT_OCR=on`): about 2 s a scan on one core.
- */
-async function textStage(ctx: RunContext, s: StageRunner): Promise<void> {
-  if (process.env.CARTOUCHE_NIGHTSHIFT_OCR !== 'on') {
-    await s.end('skipped', 'text reading is off (set CARTOUCHE_NIGHTSHIFT_OCR=on)');
-    return;
-  }
-  await s.begin(null);
-  const r = await ocrPendingItems({ sequelize: ctx.sequelize, storage: ctx.storage }, ctx.collection.id, { shouldStop: ctx.shouldStop, onProgress: (d, t) => s.progress(d, t) });
-  ctx.counts.textRead = (ctx.counts.textRead ?? 0) + r.read;
-  for (const f of r.failed) ctx.report.errors.push({ at: new Date().toISOString(), message: `text of ${f.identifier}: ${f.reason}` });
-  if (await ctx.shouldStop()) return;
-  await s.end(r.read === 0 && r.failed.length === 0 ? 'skipped' : 'done', r.read === 0 && r.failed.length === 0 ? 'no item without its text read' : `${r.read} read, ${r.mostlyText} mostly text`);
-}
-
 async function retrainStage(ctx: RunContext, s: StageRunner): Promise<void> {
   const pool = await ctx.deps.pool();
   await s.begin(null);
@@ -347,6 +347,31 @@ async function suggestStage(ctx: RunContext, s: StageRunner): Promise<void> {
   await s.end(r.subjects === 0 ? 'skipped' : 'done', r.subjects === 0 ? 'no active subject model yet' : undefined);
 }
 
+/**
+ * Text in the images (OCR, English): read once per item and engine, offered to editors at the desk (as a
+ * suggestion, never a description), searched in the catalogue and checked against the alt text. It runs after
+ * suggest because it is the slow part (bench:review), on a few tesseract.js workers (`CARTOUCHE_OCR_WORKERS`):
+ * the embedding threads are idle by then. Each collection's setting decides; `CARTOUCHE_NIGHTSHIFT_OCR=off` turns
+ * it off for the whole site. The setting is read again here, so a change during the run applies to it.
+ */
+async function textStage(ctx: RunContext, s: StageRunner): Promise<void> {
+  if (!siteReadsText()) {
+    await s.end('skipped', 'text reading is turned off for the whole site (CARTOUCHE_NIGHTSHIFT_OCR=off)');
+    return;
+  }
+  const fresh = await Collection.findByPk(ctx.collection.id, { attributes: ['id', 'readText'] });
+  if (!fresh?.readText) {
+    await s.end('skipped', 'text reading is off in this collection’s settings');
+    return;
+  }
+  await s.begin(null);
+  const r = await ocrPendingItems({ sequelize: ctx.sequelize, storage: ctx.storage }, ctx.collection.id, { workers: ocrWorkers(), shouldStop: ctx.shouldStop, onProgress: (d, t) => s.progress(d, t) });
+  ctx.counts.textRead = (ctx.counts.textRead ?? 0) + r.read;
+  for (const f of r.failed) ctx.report.errors.push({ at: new Date().toISOString(), message: `text of ${f.identifier}: ${f.reason}` });
+  if (await ctx.shouldStop()) return;
+  await s.end(r.read === 0 && r.failed.length === 0 ? 'skipped' : 'done', r.read === 0 && r.failed.length === 0 ? 'every scan’s text was already read' : `${r.read} read, ${r.mostlyText} mostly text${r.failed.length ? `, ${r.failed.length} could not be read` : ''}`);
+}
+
 async function digestStage(ctx: RunContext, s: StageRunner): Promise<void> {
   await s.begin(null);
   const sent = await sendDigest(ctx.sequelize, ctx.mailer, ctx.deps.config, ctx.collection, ctx.counts);
@@ -373,11 +398,12 @@ async function sendDigest(sequelize: Sequelize, mailer: Mailer, config: AppConfi
     `Scans embedded: ${counts.embedded}`,
     `Subjects suggested: ${counts.suggested}`,
     `Subject models rebuilt from your decisions: ${counts.retrained}`,
+    `Scans searched for text: ${counts.textRead ?? 0}`,
     '',
     `Items waiting for review: ${waiting}`,
     `Review desk: ${config.publicUrl}/review?collection=${encodeURIComponent(collection.slug)}`,
     '',
-    'Suggested subjects are not descriptions until a person approves them.',
+    'Suggested subjects and text found in scans are not descriptions until a person approves them.',
   ].join('\n');
   for (const e of editors) await mailer.send({ to: e.email, subject: `${collection.name}: ${waiting} item(s) waiting for review`, text });
   return editors.length;

@@ -13,6 +13,8 @@ export class Collection extends Model<InferAttributes<Collection>, InferCreation
   declare scheduleTimezone: CreationOptional<string>;
   declare scheduleEnabled: CreationOptional<boolean>;
   declare dropFolder: string | null;
+  /** the night shift reads the text in this collection's scans (OCR) */
+  declare readText: CreationOptional<boolean>;
   declare archivedAt: Date | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -32,6 +34,7 @@ export class Collection extends Model<InferAttributes<Collection>, InferCreation
         scheduleTimezone: { type: DataTypes.STRING(64), allowNull: false, defaultValue: 'UTC' },
         scheduleEnabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         dropFolder: { type: DataTypes.STRING(1000), allowNull: true },
+        readText: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         archivedAt: { type: DataTypes.DATE(3), allowNull: true },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),

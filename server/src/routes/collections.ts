@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { collectionCreateSchema, collectionUpdateSchema } from '../../../common/schemas/collection.ts';
 import { needs } from '../auth/permissions.ts';
 import type { AppContext } from '../context.ts';
-import type { GuardedRouter } from '../http/routes.ts';
+import { currentUser, type GuardedRouter } from '../http/routes.ts';
 import { parse } from '../http/validate.ts';
 import { collectionDetail, collectionOr404, createCollection, listArchivedCollections, listCollectionSummaries, setArchived, updateCollection } from '../services/collections.ts';
 
@@ -22,7 +22,7 @@ export function registerCollectionRoutes(api: GuardedRouter, ctx: AppContext): v
 
   api.route('post', '/collections', write, async (req, res) => {
     const body = parse(collectionCreateSchema, req.body, 'body');
-    const c = await createCollection(body);
+    const c = await createCollection(body, { id: currentUser(req).id, ip: req.ip ?? null });
     res.status(201).json({ collection: await collectionDetail(c) });
   });
 
@@ -34,16 +34,16 @@ export function registerCollectionRoutes(api: GuardedRouter, ctx: AppContext): v
   api.route('put', '/collections/:id', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const body = parse(collectionUpdateSchema, req.body, 'body');
-    res.json({ collection: await collectionDetail(await updateCollection(ctx.sequelize, id, body)) });
+    res.json({ collection: await collectionDetail(await updateCollection(ctx.sequelize, id, body, { id: currentUser(req).id, ip: req.ip ?? null })) });
   });
 
   api.route('post', '/collections/:id/archive', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
-    res.json({ collection: await collectionDetail(await setArchived(id, true)) });
+    res.json({ collection: await collectionDetail(await setArchived(id, true, { id: currentUser(req).id, ip: req.ip ?? null })) });
   });
 
   api.route('post', '/collections/:id/restore', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
-    res.json({ collection: await collectionDetail(await setArchived(id, false)) });
+    res.json({ collection: await collectionDetail(await setArchived(id, false, { id: currentUser(req).id, ip: req.ip ?? null })) });
   });
 }

@@ -1,3 +1,4 @@
+import type { Request } from 'express';
 import multer from 'multer';
 import sharp, { type Metadata } from 'sharp';
 import { z } from 'zod';
@@ -6,13 +7,13 @@ import type { AppContext } from '../context.ts';
 import { HttpProblem } from '../http/problem.ts';
 import { currentUser, type GuardedRouter } from '../http/routes.ts';
 import { parse } from '../http/validate.ts';
-import { Collection, Embedding, Example, Subject, SubjectModel } from '../models/index.ts';
+import { Collection, Example, Subject, SubjectModel } from '../models/index.ts';
 import { EXAMPLE_MEDIA } from '../models/example.ts';
-import { embedStoredFile, processEmbedder } from '../services/features.ts';
+import { processEmbedder } from '../services/features.ts';
 import { Storage } from '../services/storage.ts';
 import { activeModel, judgedItems, modelHistory, rankedPreview, summarise, synthesizeSubjectModel } from '../services/subject-models.ts';
 import { subjectCreateSchema, subjectMoveSchema, subjectUpdateSchema } from '../../../common/schemas/subject.ts';
-import { estimateAtThreshold } from '../services/subject-studio.ts';
+import { addExamples, estimateAtThreshold, removeExample } from '../services/subject-studio.ts';
 import { conceptBase, conceptUriOf, createSubject, moveSubject, subjectRecord, updateSubject } from '../services/vocabulary.ts';
 
 const idParam = z.object({ id: z.coerce.number().int().positive() });
@@ -43,6 +44,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   const read = needs('collections:read');
   const write = needs('subjects:write');
   const base = conceptBase(ctx.config.publicUrl);
+  const actorOf = (req: Request) => ({ id: currentUser(req).id, ip: req.ip ?? null });
 
   const subjectOr404 = async (id: number) => {
     const s = await Subject.findByPk(id);
@@ -110,7 +112,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   api.route('post', '/collections/:id/subjects', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const body = parse(subjectCreateSchema, req.body, 'body');
-    const s = await createSubject(ctx.sequelize, id, body, base);
+    const s = await createSubject(ctx.sequelize, id, body, base, actorOf(req));
     res.status(201).json({ subject: subjectRecord(s, (await Collection.findByPk(id))!.slug, base) });
   });
 
@@ -118,7 +120,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   api.route('put', '/subjects/:id', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const body = parse(subjectUpdateSchema, req.body, 'body');
-    const s = await updateSubject(ctx.sequelize, id, body);
+    const s = await updateSubject(ctx.sequelize, id, body, actorOf(req));
     res.json({ subject: subjectRecord(s, (await Collection.findByPk(s.collectionId))!.slug, base) });
   });
 
@@ -126,7 +128,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   api.route('post', '/subjects/:id/move', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const body = parse(subjectMoveSchema, req.body, 'body');
-    const s = await moveSubject(ctx.sequelize, id, body);
+    const s = await moveSubject(ctx.sequelize, id, body, actorOf(req));
     res.json({ subject: subjectRecord(s, (await Collection.findByPk(s.collectionId))!.slug, base) });
   });
 
@@ -146,30 +148,13 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
     // every file is checked before any is stored: a batch of examples lands whole or not at all
     for (const f of files) await checkExampleImage(f.originalname, f.buffer);
     const embedder = await processEmbedder();
-    const actor = currentUser(req);
-    const created: Example[] = [];
-    for (const f of files) {
-      const fileKey = await storage.put(f.buffer);
-      const example = await Example.create({ subjectId: id, medium, origin: medium === 'sketch' && f.originalname.startsWith('sketch-pad') ? 'drawn' : 'uploaded', fileKey, itemId: null, createdBy: actor.id });
-      try {
-        await embedStoredFile(embedder, storage, { type: 'example', id: example.id }, fileKey);
-      } catch (err) {
-        await example.destroy();
-        throw new HttpProblem(422, 'Could not read the example', `${f.originalname}: ${(err as Error).message}`);
-      }
-      created.push(example);
-    }
+    const created = await addExamples(ctx.sequelize, embedder, storage, id, medium, files.map((f) => ({ name: f.originalname, bytes: f.buffer })), actorOf(req));
     res.status(201).json({ examples: created.map(exampleView), embedderId: embedder.id });
   });
 
   api.route('delete', '/examples/:id', write, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
-    const example = await Example.findByPk(id);
-    if (!example) throw new HttpProblem(404, 'Not found', 'No such example.');
-    await ctx.sequelize.transaction(async (transaction) => {
-      await Embedding.destroy({ where: { ownerType: 'example', ownerId: id }, transaction });
-      await example.destroy({ transaction });
-    });
+    await removeExample(ctx.sequelize, id, actorOf(req));
     res.status(204).end();
   });
 
@@ -205,7 +190,7 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
       req.body,
       'body',
     );
-    const model = await synthesizeSubjectModel(ctx.sequelize, await processEmbedder(), id, body, currentUser(req).id);
+    const model = await synthesizeSubjectModel(ctx.sequelize, await processEmbedder(), id, body, currentUser(req).id, req.ip ?? null);
     res.status(201).json({ model });
   });
 

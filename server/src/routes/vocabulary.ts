@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { needs } from '../auth/permissions.ts';
 import type { AppContext } from '../context.ts';
 import { HttpProblem } from '../http/problem.ts';
-import type { GuardedRouter } from '../http/routes.ts';
+import { currentUser, type GuardedRouter } from '../http/routes.ts';
 import { parse } from '../http/validate.ts';
 import { collectionOr404 } from '../services/collections.ts';
 import { exportVocabulary, importVocabulary } from '../services/vocabulary-exchange.ts';
@@ -57,7 +57,7 @@ export function registerVocabularyRoutes(api: GuardedRouter, ctx: AppContext): v
     } catch {
       throw new HttpProblem(400, 'Not UTF-8 text', `${file.originalname}: save the file as UTF-8 text and import it again.`);
     }
-    const report = await importVocabulary(ctx.sequelize, id, format, text, base, body.dryRun === 'true');
+    const report = await importVocabulary(ctx.sequelize, id, format, text, base, { id: currentUser(req).id, ip: req.ip ?? null }, body.dryRun === 'true');
     res.status(report.dryRun ? 200 : 201).json({ report });
   });
 }

@@ -24,7 +24,19 @@ export type AuditAction =
   | 'review-caption-unflagged'
   | 'review-example-promoted'
   | 'review-second-recorded'
-  | 'review-settings-changed';
+  | 'review-settings-changed'
+  | 'collection-created'
+  | 'collection-changed'
+  | 'collection-archived'
+  | 'collection-restored'
+  | 'subject-created'
+  | 'subject-changed'
+  | 'subject-moved'
+  | 'subject-retired'
+  | 'example-added'
+  | 'example-removed'
+  | 'subject-model-made'
+  | 'vocabulary-imported';
 
 export interface AuditInput {
   action: AuditAction;

@@ -2,6 +2,9 @@ import { Op, QueryTypes, UniqueConstraintError, type Sequelize } from 'sequelize
 import type { CollectionCreate, CollectionDetail, CollectionUpdate } from '../../../common/schemas/collection.ts';
 import { HttpProblem } from '../http/problem.ts';
 import { Collection, Subject } from '../models/index.ts';
+import { audit } from './audit.ts';
+import type { Actor } from './review.ts';
+import { auditChanges } from './vocabulary.ts';
 
 export interface CollectionSummary {
   id: number;
@@ -84,6 +87,7 @@ export async function collectionDetail(c: Collection): Promise<CollectionDetail>
     scheduleTimezone: c.scheduleTimezone,
     scheduleEnabled: c.scheduleEnabled,
     dropFolder: c.dropFolder ?? '',
+    readText: c.readText,
     archivedAt: c.archivedAt ? c.archivedAt.toISOString() : null,
     updatedAt: c.updatedAt.toISOString(),
     feedingSubjectIds: feeding.map((s) => s.id),
@@ -100,9 +104,13 @@ function slugTaken(slug: string): HttpProblem {
   return new HttpProblem(409, 'Short name in use', `Another collection (perhaps an archived one) already uses the short name “${slug}”.`, { errors: [{ path: 'slug', message: 'Already used by another collection.' }] });
 }
 
-export async function createCollection(input: CollectionCreate): Promise<Collection> {
+export async function createCollection(input: CollectionCreate, actor: Actor): Promise<Collection> {
   try {
-    return await Collection.create({ ...input, dropFolder: null, archivedAt: null });
+    return await Collection.sequelize!.transaction(async (transaction) => {
+      const c = await Collection.create({ ...input, dropFolder: null, archivedAt: null }, { transaction });
+      await audit({ action: 'collection-created', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: c.id, detail: { slug: c.slug, name: c.name } }, transaction);
+      return c;
+    });
   } catch (err) {
     if (err instanceof UniqueConstraintError) throw slugTaken(input.slug);
     throw err;
@@ -111,9 +119,11 @@ export async function createCollection(input: CollectionCreate): Promise<Collect
 
 /**
  * Saves every setting of a collection and which of its subjects feed alt-text drafts, in one transaction.
- * The copy must be as fresh as the stored one (`updatedAt`): otherwise 409 and nothing changes.
+ * The copy must be as fresh as the stored one (`updatedAt`): otherwise 409 and nothing changes. The
+ * `collection-changed` audit event (settings changed, old and new; feeding subjects added and removed) is
+ * written in the same transaction, and only when something changed.
  */
-export async function updateCollection(sequelize: Sequelize, id: number, input: CollectionUpdate): Promise<Collection> {
+export async function updateCollection(sequelize: Sequelize, id: number, input: CollectionUpdate, actor: Actor): Promise<Collection> {
   const { feedingSubjectIds, updatedAt, ...settings } = input;
   try {
     return await sequelize.transaction(async (transaction) => {
@@ -122,12 +132,20 @@ export async function updateCollection(sequelize: Sequelize, id: number, input: 
       if (c.updatedAt.getTime() !== new Date(updatedAt).getTime()) {
         throw new HttpProblem(409, 'Changed by someone else', `${c.name} was changed after this copy was opened. Reload it to see the change, then make yours again.`);
       }
-      const own = await Subject.findAll({ where: { collectionId: id }, attributes: ['id'], transaction });
+      const own = await Subject.findAll({ where: { collectionId: id }, attributes: ['id', 'feedsAltText'], transaction });
       const ownIds = new Set(own.map((s) => s.id));
       const foreign = feedingSubjectIds.filter((s) => !ownIds.has(s));
       if (foreign.length > 0) throw new HttpProblem(400, 'Invalid request', `Subjects ${foreign.join(', ')} do not belong to this collection.`, { errors: [{ path: 'feedingSubjectIds', message: 'Only this collection’s subjects can feed its alt text.' }] });
+      const before = Object.fromEntries(Object.keys(settings).map((k) => [k, c.get(k)]));
       await c.update(settings, { transaction });
       const feeding = new Set(feedingSubjectIds);
+      const fed = new Set(own.filter((s) => s.feedsAltText).map((s) => s.id));
+      const changes = auditChanges(before, Object.fromEntries(Object.keys(settings).map((k) => [k, c.get(k)])), Object.keys(settings));
+      const feedingAdded = [...feeding].filter((s) => !fed.has(s)).sort((a, b) => a - b);
+      const feedingRemoved = [...fed].filter((s) => !feeding.has(s)).sort((a, b) => a - b);
+      if (Object.keys(changes).length > 0 || feedingAdded.length > 0 || feedingRemoved.length > 0) {
+        await audit({ action: 'collection-changed', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: id, detail: { changes, feedingAdded, feedingRemoved } }, transaction);
+      }
       await Subject.update({ feedsAltText: true }, { where: { collectionId: id, id: [...feeding] }, transaction });
       await Subject.update({ feedsAltText: false }, { where: { collectionId: id, id: [...ownIds].filter((s) => !feeding.has(s)) }, transaction });
       return c;
@@ -139,9 +157,13 @@ export async function updateCollection(sequelize: Sequelize, id: number, input: 
 }
 
 /** Archiving hides a collection from every list and stops its schedule; nothing is deleted, and restoring brings it back. */
-export async function setArchived(id: number, archived: boolean): Promise<Collection> {
+export async function setArchived(id: number, archived: boolean, actor: Actor): Promise<Collection> {
   const c = await collectionOr404(id);
-  await c.update({ archivedAt: archived ? (c.archivedAt ?? new Date()) : null });
+  if (Boolean(c.archivedAt) === archived) return c;
+  await Collection.sequelize!.transaction(async (transaction) => {
+    await c.update({ archivedAt: archived ? new Date() : null }, { transaction });
+    await audit({ action: archived ? 'collection-archived' : 'collection-restored', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: id, detail: { slug: c.slug, name: c.name } }, transaction);
+  });
   return c;
 }
 

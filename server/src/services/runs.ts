@@ -2,8 +2,11 @@ import { Op, type Sequelize } from 'sequelize';
 import { HttpProblem } from '../http/problem.ts';
 import { Collection, Job, Run } from '../models/index.ts';
 
-// tonight's models learn from today's decisions before they suggest
-export const STAGES = ['ingest', 'embed', 'text', 'retrain', 'suggest', 'digest'] as const;
+// tonight's models learn from today's decisions before they suggest; text reading (OCR, the slowest stage per
+// scan: bench:review) comes after suggest, so the suggestions are ready before the slow part. The order is
+// the order of work and of display: a run recorded with another order is shown in this one, and a run taken over
+// goes on with the first stage in this order that is neither done nor skipped.
+export const STAGES = ['ingest', 'embed', 'retrain', 'suggest', 'text', 'digest'] as const;
 export type Stage = (typeof STAGES)[number];
 
 export interface StageReport {

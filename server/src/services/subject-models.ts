@@ -24,6 +24,7 @@ import {
 } from '../ml/index.ts';
 import { HttpProblem } from '../http/problem.ts';
 import { Item, Subject, SubjectModel, Suggestion } from '../models/index.ts';
+import { audit } from './audit.ts';
 import { itemRows, prepareCollection, type PreparedCollection } from './features.ts';
 import { carryDecision, chosenRegressor, latestRegressorNote } from './weight-maps.ts';
 
@@ -97,7 +98,8 @@ interface Built {
 
 /**
  * Synthesizes a new version of a subject's model from stored features (no network run), measures it by
- * leave-one-out, calibrates it, and stores it as the active version.
+ * leave-one-out, calibrates it, and stores it as the active version. Asked for by a person (`actorId`), the
+ * version is audited (`subject-model-made`) in the same transaction; the night shift's versions are not.
  */
 export async function synthesizeSubjectModel(
   sequelize: Sequelize,
@@ -105,6 +107,7 @@ export async function synthesizeSubjectModel(
   subjectId: number,
   request: SynthesisRequest,
   actorId: number | null,
+  ip: string | null = null,
 ): Promise<ModelSummary> {
   const subject = await loadSubject(subjectId);
   const prepared = await prepareCollection(sequelize, subject.collectionId, embedder);
@@ -191,7 +194,7 @@ export async function synthesizeSubjectModel(
   const row = await sequelize.transaction(async (transaction) => {
     const last = (await SubjectModel.max('version', { where: { subjectId }, transaction })) as number | null;
     await SubjectModel.update({ active: false }, { where: { subjectId, embedderId: embedder.id, active: true }, transaction });
-    return SubjectModel.create(
+    const made = await SubjectModel.create(
       {
         subjectId,
         version: (last ?? 0) + 1,
@@ -208,6 +211,8 @@ export async function synthesizeSubjectModel(
       },
       { transaction },
     );
+    if (actorId !== null) await audit({ action: 'subject-model-made', actorId, ip, targetType: 'subject', targetId: subjectId, detail: { subjectModelId: made.id, version: made.version, method: made.method, mode: request.mode, embedderId: made.embedderId } }, transaction);
+    return made;
   });
   return summarise(row);
 }

@@ -1,8 +1,12 @@
 import type { Sequelize } from 'sequelize';
-import { binaryScores, fromStoredModel, probabilityOf, prototypeModel, scoreAll, scoreStats, zScore, type Calibration, type Embedder, type LinearModel } from '../ml/index.ts';
+import { binaryScores, fromStoredModel, mirrorAverage, probabilityOf, prototypeModel, scoreAll, scoreStats, zScore, type Calibration, type Embedder, type LinearModel } from '../ml/index.ts';
 import { HttpProblem } from '../http/problem.ts';
-import { Subject } from '../models/index.ts';
-import { prepareCollection } from './features.ts';
+import { Embedding, Example, Subject } from '../models/index.ts';
+import type { EXAMPLE_MEDIA } from '../models/example.ts';
+import { audit } from './audit.ts';
+import { prepareCollection, storeEmbedding } from './features.ts';
+import type { Actor } from './review.ts';
+import type { Storage } from './storage.ts';
 import { activeModel, judgedItems } from './subject-models.ts';
 
 /**
@@ -112,4 +116,63 @@ export async function estimateAtThreshold(sequelize: Sequelize, embedder: Pick<E
     recall,
     recallInterval: wilsonInterval(tp, tp + fn),
   };
+}
+
+// ------------------------------------------------------------------ examples
+
+export interface ExampleFile {
+  name: string;
+  bytes: Buffer;
+}
+
+/**
+ * Adds a batch of examples to a subject, whole or not at all: every file is embedded first (with its mirror
+ * image, averaged), and only when all of them could be read are the examples, their features and one
+ * `example-added` audit event each stored, in one transaction. A sketch saved from the sketch pad
+ * (`sketch-pad-….png`) is recorded as drawn, anything else as uploaded.
+ */
+export async function addExamples(
+  sequelize: Sequelize,
+  embedder: Pick<Embedder, 'id' | 'embedWithMirror'>,
+  storage: Storage,
+  subjectId: number,
+  medium: (typeof EXAMPLE_MEDIA)[number],
+  files: readonly ExampleFile[],
+  actor: Actor,
+): Promise<Example[]> {
+  const vectors: Float32Array[] = [];
+  for (const f of files) {
+    try {
+      vectors.push(mirrorAverage((await embedder.embedWithMirror([f.bytes]))[0]!));
+    } catch (err) {
+      throw new HttpProblem(422, 'Could not read the example', `${f.name}: ${(err as Error).message}`);
+    }
+  }
+  const keys: string[] = [];
+  for (const f of files) keys.push(await storage.put(f.bytes));
+  return sequelize.transaction(async (transaction) => {
+    const subject = await Subject.findByPk(subjectId, { transaction });
+    if (!subject) throw new HttpProblem(404, 'Not found', 'No such subject.');
+    const created: Example[] = [];
+    for (const [i, f] of files.entries()) {
+      const origin = medium === 'sketch' && f.name.startsWith('sketch-pad') ? 'drawn' : 'uploaded';
+      const example = await Example.create({ subjectId, medium, origin, fileKey: keys[i]!, itemId: null, createdBy: actor.id }, { transaction });
+      await storeEmbedding({ type: 'example', id: example.id }, embedder.id, vectors[i]!, transaction);
+      await audit({ action: 'example-added', actorId: actor.id, ip: actor.ip, targetType: 'subject', targetId: subjectId, detail: { exampleId: example.id, prefLabel: subject.prefLabel, medium, origin, fileName: f.name } }, transaction);
+      created.push(example);
+    }
+    return created;
+  });
+}
+
+/** Removes an example and its features, with its `example-removed` audit event, in one transaction. */
+export async function removeExample(sequelize: Sequelize, exampleId: number, actor: Actor): Promise<void> {
+  await sequelize.transaction(async (transaction) => {
+    const example = await Example.findByPk(exampleId, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!example) throw new HttpProblem(404, 'Not found', 'No such example.');
+    const subject = await Subject.findByPk(example.subjectId, { transaction, attributes: ['id', 'prefLabel'] });
+    await Embedding.destroy({ where: { ownerType: 'example', ownerId: exampleId }, transaction });
+    await example.destroy({ transaction });
+    await audit({ action: 'example-removed', actorId: actor.id, ip: actor.ip, targetType: 'subject', targetId: example.subjectId, detail: { exampleId, prefLabel: subject?.prefLabel ?? null, medium: example.medium, origin: example.origin, itemId: example.itemId } }, transaction);
+  });
 }

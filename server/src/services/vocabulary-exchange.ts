@@ -4,6 +4,8 @@ import { HttpProblem } from '../http/problem.ts';
 import { Collection, Subject } from '../models/index.ts';
 import { readTurtle, UnreadableVocabulary, writeTurtle, type ExportConcept, type VocabularyReading, type Violation } from './skos.ts';
 import { readCsv, writeCsv } from './vocabulary-csv.ts';
+import { audit } from './audit.ts';
+import type { Actor } from './review.ts';
 import { conceptUriOf } from './vocabulary.ts';
 
 export type ExchangeFormat = 'turtle' | 'csv';
@@ -78,9 +80,10 @@ function refuse(violations: Violation[]): HttpProblem {
  * collection already has updates that subject; any other concept becomes a new subject (keeping its URI,
  * or minting one under `base` for a CSV row without). Subjects the file does not mention are kept as they
  * are. Any integrity violation, or a preferred label another subject already has, refuses the whole file.
- * `dryRun` checks everything, database constraints included, and stores nothing.
+ * `dryRun` checks everything, database constraints included, and stores nothing. A stored import writes one
+ * `vocabulary-imported` audit event with its counts in the same transaction; a refused one or a dry run writes none.
  */
-export async function importVocabulary(sequelize: Sequelize, collectionId: number, format: ExchangeFormat, text: string, base: string, dryRun = false): Promise<ImportReport> {
+export async function importVocabulary(sequelize: Sequelize, collectionId: number, format: ExchangeFormat, text: string, base: string, actor: Actor, dryRun = false): Promise<ImportReport> {
   const c = await Collection.findByPk(collectionId);
   if (!c) throw new HttpProblem(404, 'Not found', 'No such collection.');
   if (c.archivedAt) throw new HttpProblem(409, 'Collection archived', `${c.name} is archived; restore it before importing into it.`);
@@ -155,6 +158,7 @@ export async function importVocabulary(sequelize: Sequelize, collectionId: numbe
       }
       const report: ImportReport = { dryRun, concepts: reading.concepts.length, created, updated, untouched: existing.length - matched.size, warnings: reading.warnings };
       if (dryRun) throw new DryRunDone(report);
+      await audit({ action: 'vocabulary-imported', actorId: actor.id, ip: actor.ip, targetType: 'collection', targetId: collectionId, detail: { format, concepts: report.concepts, created, updated, untouched: report.untouched, warnings: report.warnings.length } }, transaction);
       return report;
     });
   } catch (err) {

@@ -2,6 +2,8 @@ import { UniqueConstraintError, type Sequelize, type Transaction } from 'sequeli
 import type { SubjectCreate, SubjectMove, SubjectUpdate } from '../../../common/schemas/subject.ts';
 import { HttpProblem } from '../http/problem.ts';
 import { Collection, Subject } from '../models/index.ts';
+import { audit } from './audit.ts';
+import type { Actor } from './review.ts';
 
 /**
  * A collection's vocabulary: subjects and form terms in a broader/narrower tree. Every change is
@@ -55,6 +57,33 @@ export function subjectRecord(s: Subject, collectionSlug: string, base: string):
   };
 }
 
+/** The fields of a subject an archivist edits, as the audit trail records them. */
+const SUBJECT_FIELDS = ['prefLabel', 'altLabels', 'kind', 'broaderId', 'notation', 'scopeNote', 'altTextPhrase', 'conceptUri', 'status', 'feedsAltText'] as const;
+
+/** Long texts (scope notes, house style) are recorded in the audit trail only up to this many characters. */
+const AUDIT_TEXT_LIMIT = 200;
+
+function auditValue(v: unknown): unknown {
+  if (typeof v === 'string' && v.length > AUDIT_TEXT_LIMIT) return `${v.slice(0, AUDIT_TEXT_LIMIT)}… (${v.length} characters)`;
+  if (v instanceof Date) return v.toISOString();
+  return v === undefined ? null : v;
+}
+
+/** What an edit changed, field by field, for an audit event's detail: `{ field: { from, to } }`; unchanged fields are left out. */
+export function auditChanges(before: Record<string, unknown>, after: Record<string, unknown>, fields: readonly string[]): Record<string, { from: unknown; to: unknown }> {
+  const changes: Record<string, { from: unknown; to: unknown }> = {};
+  for (const f of fields) {
+    const from = auditValue(before[f]);
+    const to = auditValue(after[f]);
+    if (JSON.stringify(from) !== JSON.stringify(to)) changes[f] = { from, to };
+  }
+  return changes;
+}
+
+function subjectFields(s: Subject): Record<string, unknown> {
+  return Object.fromEntries(SUBJECT_FIELDS.map((f) => [f, s.get(f)]));
+}
+
 function labelTaken(label: string): HttpProblem {
   return new HttpProblem(409, 'Label in use', `This collection already has a subject called “${label}”.`, { errors: [{ path: 'prefLabel', message: 'Another subject of this collection has this preferred label.' }] });
 }
@@ -82,8 +111,11 @@ async function checkBroader(collectionId: number, subjectId: number | null, broa
   }
 }
 
-/** Creates a subject; one without a concept URI gets one minted under `base` and stored, so it stays the same if the collection is renamed. */
-export async function createSubject(sequelize: Sequelize, collectionId: number, input: SubjectCreate, base: string): Promise<Subject> {
+/**
+ * Creates a subject; one without a concept URI gets one minted under `base` and stored, so it stays the same if the collection is renamed.
+ * The `subject-created` audit event is written in the same transaction.
+ */
+export async function createSubject(sequelize: Sequelize, collectionId: number, input: SubjectCreate, base: string, actor: Actor): Promise<Subject> {
   try {
     return await sequelize.transaction(async (transaction) => {
       const c = await Collection.findByPk(collectionId, { transaction });
@@ -97,6 +129,7 @@ export async function createSubject(sequelize: Sequelize, collectionId: number, 
         await Subject.update({ conceptUri: uri }, { where: { id: s.id }, transaction });
         s.conceptUri = uri;
       }
+      await audit({ action: 'subject-created', actorId: actor.id, ip: actor.ip, targetType: 'subject', targetId: s.id, detail: { collectionId, prefLabel: s.prefLabel, kind: s.kind, status: s.status, broaderId: s.broaderId, conceptUri: s.conceptUri } }, transaction);
       return s;
     });
   } catch (err) {
@@ -118,16 +151,28 @@ async function lockedSubject(id: number, version: number, transaction: Transacti
   return s;
 }
 
-export async function updateSubject(sequelize: Sequelize, id: number, input: SubjectUpdate): Promise<Subject> {
+/**
+ * Saves a subject's whole record from the editor's copy. Its audit event (`subject-retired` when the status
+ * becomes retired, else `subject-changed`) lists the fields changed with old and new values; a save that
+ * changes nothing writes none.
+ */
+export async function updateSubject(sequelize: Sequelize, id: number, input: SubjectUpdate, actor: Actor): Promise<Subject> {
   const { version, ...fields } = input;
   try {
     return await sequelize.transaction(async (transaction) => {
       const s = await lockedSubject(id, version, transaction);
       await checkBroader(s.collectionId, s.id, fields.broaderId, transaction);
       await checkUriFree(s.collectionId, s.id, fields.conceptUri, transaction);
+      const before = subjectFields(s);
       // an emptied URI field keeps the URI the subject is already cited by
       s.set({ ...fields, conceptUri: fields.conceptUri ?? s.conceptUri });
-      return s.save({ transaction });
+      const saved = await s.save({ transaction });
+      const changes = auditChanges(before, subjectFields(saved), SUBJECT_FIELDS);
+      if (Object.keys(changes).length > 0) {
+        const action = changes.status && saved.status === 'retired' ? 'subject-retired' : 'subject-changed';
+        await audit({ action, actorId: actor.id, ip: actor.ip, targetType: 'subject', targetId: saved.id, detail: { prefLabel: saved.prefLabel, version: saved.version, changes } }, transaction);
+      }
+      return saved;
     });
   } catch (err) {
     if (err instanceof UniqueConstraintError) throw labelTaken(input.prefLabel);
@@ -135,11 +180,14 @@ export async function updateSubject(sequelize: Sequelize, id: number, input: Sub
   }
 }
 
-export async function moveSubject(sequelize: Sequelize, id: number, input: SubjectMove): Promise<Subject> {
+export async function moveSubject(sequelize: Sequelize, id: number, input: SubjectMove, actor: Actor): Promise<Subject> {
   return sequelize.transaction(async (transaction) => {
     const s = await lockedSubject(id, input.version, transaction);
     await checkBroader(s.collectionId, s.id, input.broaderId, transaction);
+    const from = s.broaderId;
     s.set({ broaderId: input.broaderId });
-    return s.save({ transaction });
+    const saved = await s.save({ transaction });
+    if (from !== saved.broaderId) await audit({ action: 'subject-moved', actorId: actor.id, ip: actor.ip, targetType: 'subject', targetId: saved.id, detail: { prefLabel: saved.prefLabel, version: saved.version, changes: { broaderId: { from, to: saved.broaderId } } } }, transaction);
+    return saved;
   });
 }

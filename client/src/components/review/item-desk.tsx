@@ -389,7 +389,7 @@ export function ItemDesk({ panel, position, announce, onApproved, onSkip }: Item
                 <p className="text-muted">No confident text was found.</p>
               )
             ) : (
-              <p className="text-muted">Not read yet: the night shift reads the text in new scans.</p>
+              <p className="text-muted">Not read yet. The night shift reads the text in new scans where the collection’s settings ask for it; you can read it now.</p>
             )}
             <Button onClick={() => readText.mutate({ itemId: item.id }, { onSuccess: () => announce('Text in the image read.'), onError: (er) => failed(er) })} aria-disabled={readText.isPending ? true : undefined} aria-keyshortcuts="o">
               {readText.isPending ? 'Reading…' : panel.ocr ? 'Read it again' : 'Read it now'} <kbd className="text-sm font-normal">O</kbd>

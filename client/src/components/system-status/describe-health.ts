@@ -1,17 +1,6 @@
-import type { Health } from '../../api/health';
+import type { EmbedderHealth, Health } from '../../api/health';
 import type { StatusTone } from '../ui/status-badge';
 import { formatCount, formatDateTime } from '../../lib/format';
-
-/** The embedder part of the report (newer servers send it; an older one may not). */
-export interface EmbedderReport {
-  requested: 'onnx' | 'tfjs' | 'configured model';
-  state: 'idle' | 'starting' | 'ready' | 'failed';
-  id: string | null;
-  runtime: 'onnx' | 'tfjs' | null;
-  fallbackReason: string | null;
-  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
-  error?: string;
-}
 
 export interface HealthPart {
   key: 'database' | 'worker' | 'embedder';
@@ -29,7 +18,7 @@ function heartbeat(iso: string | null): string | null {
 const RUNTIME_NAMES = { onnx: 'ONNX Runtime', tfjs: 'TensorFlow.js' } as const;
 
 /** The embedder in words: which runtime turns images into features, and why when it is the fallback. */
-export function describeEmbedder(e: EmbedderReport): HealthPart {
+export function describeEmbedder(e: EmbedderHealth): HealthPart {
   const asked = e.requested === 'configured model' ? 'a configured model' : RUNTIME_NAMES[e.requested];
   switch (e.state) {
     case 'idle':
@@ -50,7 +39,7 @@ export function describeEmbedder(e: EmbedderReport): HealthPart {
 }
 
 /** Health report -> words. Every state is spelled out; nothing relies on colour or shape. */
-export function describeHealth(health: Health & { embedder?: EmbedderReport }): { summary: string; tone: StatusTone; parts: HealthPart[] } {
+export function describeHealth(health: Health): { summary: string; tone: StatusTone; parts: HealthPart[] } {
   const { database, worker } = health;
 
   const databasePart: HealthPart = database.ok
