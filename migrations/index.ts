@@ -7,6 +7,7 @@ import * as m0004 from './0004-weight-maps.ts';
 import * as m0005 from './0005-review.ts';
 import * as m0007 from './0007-ledger-exports.ts';
 import * as m0008 from './0008-collection-read-text.ts';
+import * as m0009 from './0009-review-margin.ts';
 
 export interface MigrationModule {
   up(params: MigrationParams<QueryInterface>): Promise<void>;
@@ -25,4 +26,5 @@ export const migrations: Array<[name: string, module: MigrationModule]> = [
   ['0005-review', m0005],
   ['0007-ledger-exports', m0007],
   ['0008-collection-read-text', m0008],
+  ['0009-review-margin', m0009],
 ];

@@ -1,13 +1,20 @@
 /**
- * Review-desk benchmark: `npx tsx scripts/bench/review.ts [--items 20000] [--ocr 4] [--repeats 10]`
+ * Review-desk benchmark: `npx tsx scripts/bench/review.ts [--items 20000] [--ocr 8] [--repeats 10]`
  *
- * 1. OCR: demo scans rendered at review size (1600 px on the long side), read one after another on one
- *    tesseract.js worker — ms per image (after a first, warming read), worker start, peak RSS.
+ * 1. OCR as the night shift's text stage does it: demo scans of the three demo collections (`--ocr` with visible
+ *    lettering from each, plus two without), drawn at 3000 px like a scan and made into the 1600 px review JPEG
+ *    the way intake makes it, read by `readImageText` (the stage's settings) on one worker one after another and
+ *    on the stage's pool (`ocrWorkers()`, CARTOUCHE_OCR_WORKERS) at once. A table per configuration: wall ms per
+ *    scan (after a warming read on every worker), CPU ms per scan (all threads of the process; on a shared machine
+ *    read this one), and quality against the words the demo drew (`scene.visibleText`): words found, and other
+ *    words kept (misreadings and stray letters). A first row reads with the settings used before (page
+ *    segmentation mode 6, one worker) for comparison.
  * 2. Catalogue and queue against MariaDB: a generated collection of N items with three proposals each —
  *    the first search-text build, a FULLTEXT search, a rebuild with nothing changed, the review queue in
  *    uncertainty order and by identifier. Runs only against a database whose name ends in `_test`
  *    (CARTOUCHE_DB_NAME), and removes its collection afterwards.
  */
+import { availableParallelism } from 'node:os';
 import { parseArgs } from 'node:util';
 import sharp from 'sharp';
 import { QueryTypes } from 'sequelize';
@@ -16,11 +23,12 @@ import { openDatabase } from '../../server/src/db/index.ts';
 import { createMigrator } from '../../server/src/db/migrator.ts';
 import { Collection, Subject } from '../../server/src/models/index.ts';
 import { searchCatalogue, syncStaleSearchText } from '../../server/src/services/catalogue.ts';
-import { createOcrWorker, readImageText } from '../../server/src/services/ocr.ts';
+import { createOcrWorker, OCR_ENGINE, OCR_PAGE_SEGMENTATION, ocrWorkers, readImageText } from '../../server/src/services/ocr.ts';
 import { reviewQueue } from '../../server/src/services/review.ts';
 import { buildDemoScenario, renderItemImage } from '../demo/index.ts';
+import { refreshCollectionReviewMargins } from '../../server/src/models/review-margin.ts';
 
-const { values } = parseArgs({ options: { items: { type: 'string', default: '20000' }, ocr: { type: 'string', default: '4' }, repeats: { type: 'string', default: '10' } } });
+const { values } = parseArgs({ options: { items: { type: 'string', default: '20000' }, ocr: { type: 'string', default: '8' }, repeats: { type: 'string', default: '10' } } });
 const N = Number(values.items);
 const OCR_N = Number(values.ocr);
 const R = Number(values.repeats);
@@ -43,27 +51,59 @@ const ms = (x: number) => `${x.toFixed(1)} ms`;
 
 // ---------------------------------------------------------------- OCR
 {
-  const plates = buildDemoScenario().collections[0]!;
-  const images: Buffer[] = [];
-  for (const item of plates.items.slice(0, OCR_N + 1)) {
-    const img = await renderItemImage(item, plates.medium);
-    images.push(await sharp(img.data).resize(1600, 1600, { fit: 'inside' }).jpeg({ quality: 85 }).toBuffer());
+  const wordsOf = (text: string) => text.toUpperCase().split(/[^\p{L}\p{N}]+/u).filter((w) => w.length >= 2);
+  const scans: Array<{ view: Buffer; words: Set<string> }> = [];
+  for (const c of buildDemoScenario().collections) {
+    const lettered = c.items.filter((i) => i.scene.visibleText.length > 0).slice(0, OCR_N);
+    const plain = c.items.filter((i) => i.scene.visibleText.length === 0).slice(0, 2);
+    for (const item of [...lettered, ...plain]) {
+      const scan = await renderItemImage(item, c.medium, { width: 3000 });
+      // as intake makes the review image (services/ingest/derivatives.ts): 1600 px long side, JPEG quality 84
+      const view = await sharp(scan.data).resize(1600, 1600, { fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 84 }).toBuffer();
+      scans.push({ view, words: new Set(item.scene.visibleText.flatMap(wordsOf)) });
+    }
   }
-  const s = performance.now();
-  const worker = await createOcrWorker();
-  rows.push(['ocr', 'worker start (language data from node_modules)', ms(performance.now() - s)]);
-  await readImageText(worker, images[0]!);
-  const t: number[] = [];
-  for (const image of images.slice(1)) {
-    const a = performance.now();
-    await readImageText(worker, image);
-    t.push(performance.now() - a);
-    sample();
+  const table: string[][] = [];
+  // before: page segmentation left at the library's default (6, one uniform block: the same output as unset), one worker
+  const configurations: Array<{ label: string; workers: number; segmentation?: string }> = [
+    { label: 'before: mode 6 (library default), 1 worker', workers: 1, segmentation: '6' },
+    { label: `mode ${OCR_PAGE_SEGMENTATION}, 1 worker, one scan after another`, workers: 1 },
+    ...(ocrWorkers() > 1 ? [{ label: `mode ${OCR_PAGE_SEGMENTATION}, ${ocrWorkers()} workers at once: the text stage`, workers: ocrWorkers() }] : []),
+  ];
+  for (const { label, workers, segmentation } of configurations) {
+    const s0 = performance.now();
+    const pool = await Promise.all(Array.from({ length: workers }, () => createOcrWorker()));
+    const startMs = performance.now() - s0;
+    if (segmentation) for (const w of pool) await w.setParameters({ tessedit_pageseg_mode: segmentation as never });
+    await Promise.all(pool.map((w, i) => readImageText(w, scans[i % scans.length]!.view)));
+    let next = 0;
+    let found = 0;
+    let expected = 0;
+    let other = 0;
+    const cpu0 = process.cpuUsage();
+    const t0 = performance.now();
+    await Promise.all(
+      pool.map(async (worker) => {
+        for (let i = next++; i < scans.length; i = next++) {
+          const reading = await readImageText(worker, scans[i]!.view);
+          const got = new Set(wordsOf(reading.text));
+          for (const w of scans[i]!.words) if (got.has(w)) found++;
+          expected += scans[i]!.words.size;
+          for (const w of got) if (!scans[i]!.words.has(w)) other++;
+          sample();
+        }
+      }),
+    );
+    const wall = (performance.now() - t0) / scans.length;
+    const cpu = process.cpuUsage(cpu0);
+    await Promise.all(pool.map((w) => w.terminate()));
+    table.push([label, ms(startMs), ms(wall), ms((cpu.user + cpu.system) / 1000 / scans.length), `${found} of ${expected} (${((100 * found) / Math.max(1, expected)).toFixed(1)} %)`, String(other)]);
+    rows.push(['ocr', `${label}: wall per review-size scan`, ms(wall)]);
   }
-  await worker.terminate();
-  t.sort((a, b) => a - b);
-  rows.push(['ocr', `read one 1600 px scan (median of ${t.length})`, ms(t[Math.floor(t.length / 2)]!)]);
-  rows.push(['ocr', 'slowest', ms(t[t.length - 1]!)]);
+  const head = ['configuration', 'worker start', 'wall ms/scan', 'CPU ms/scan', 'drawn words found', 'other words kept'];
+  const widths = head.map((h, i) => Math.max(h.length, ...table.map((r) => r[i]!.length)));
+  console.log(`\nOCR: ${scans.length} demo scans at review size (1600 px), ${OCR_ENGINE}, ${availableParallelism()} core(s)`);
+  for (const r of [head, ...table]) console.log(r.map((x, i) => x.padEnd(widths[i]!)).join('  '));
 }
 
 // ---------------------------------------------------------------- catalogue and queue
@@ -95,6 +135,10 @@ if (!config.db.name.endsWith('_test')) {
     }
     rows.push(['setup', `${N} items, ${N * 3} proposals inserted`, ms(performance.now() - s0)]);
     let t = performance.now();
+    // the proposals went in by SQL, as the suggest stage writes them: the same pass over the collection follows
+    await refreshCollectionReviewMargins(sequelize, c.id);
+    rows.push(['queue', 'review margins of every item (the suggest stage\'s closing pass)', ms(performance.now() - t)]);
+    t = performance.now();
     await syncStaleSearchText(sequelize, c.id);
     rows.push(['catalogue', 'first search-text build (every item)', ms(performance.now() - t)]);
     t = performance.now();

@@ -1,8 +1,9 @@
-import type { Sequelize } from 'sequelize';
+import { QueryTypes, type Sequelize } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp, type CartoucheApp } from '../../server/src/app.ts';
 import sharp from 'sharp';
 import { AuditEvent, Embedding, Example, Item, SubjectModel, Suggestion } from '../../server/src/models/index.ts';
+import { refreshCollectionReviewMargins } from '../../server/src/models/review-margin.ts';
 import { ingestFile, intakeLimits } from '../../server/src/services/ingest.ts';
 import { Storage } from '../../server/src/services/storage.ts';
 import { openTestDatabase, resetDatabase } from '../helpers/db.ts';
@@ -210,3 +211,76 @@ describe('the review desk API', () => {
     expect((await Item.findByPk(s.item.id))?.version).toBe(s.item.version);
   });
 });
+
+describe('the queue order', () => {
+  // A small collection whose order is worked out by hand from the rule the queue states: items this editor
+  // skipped last; before them, the items whose most doubtful open proposal is nearest 0.5 first, items
+  // without a calibrated open proposal after those; ties by identifier. Approved items are not in the open queue.
+  async function queueScene() {
+    const c = await makeCollection();
+    const a = await makeSubject(c, { prefLabel: 'harbour crane' });
+    const b = await makeSubject(c, { prefLabel: 'pilot boat' });
+    const made = new Map<string, Item>();
+    const item = async (identifier: string, state: 'new' | 'suggested' | 'approved', proposals: Array<[typeof a, number | null, ('proposed' | 'accepted')?]>) => {
+      const it = await makeItem(c, { identifier, state });
+      for (const [subject, probability, decision] of proposals) await (await makeSuggestion(it, subject, decision ?? 'proposed')).update({ probability });
+      made.set(identifier, it);
+    };
+    // created out of identifier order, so neither id nor creation order can pass for the queue's order
+    await item('Q-07', 'suggested', [[a, 0.75], [b, 0.55]]);
+    await item('Q-05', 'suggested', [[b, 0.75]]);
+    await item('Q-02', 'suggested', [[a, 0.25]]);
+    await item('Q-01', 'suggested', [[a, null]]);
+    await item('Q-04', 'new', []);
+    await item('Q-03', 'suggested', [[a, 0.5, 'accepted'], [b, 0.9]]);
+    await item('Q-06', 'suggested', [[a, 0.5]]);
+    await item('Q-08', 'approved', [[a, 0.45]]);
+    await item('Q-09', 'suggested', [[a, 0.52]]);
+    await editor.agent.post(`/api/review/items/${made.get('Q-06')!.id}/skip`).set('x-csrf-token', editor.csrf).expect(204);
+    const identifiers = new Map([...made].map(([k, v]) => [v.id, k]));
+    const queue = async (query: string) => {
+      const res = await editor.agent.get(`/api/review/queue?collectionId=${c.id}${query}`).expect(200);
+      return { ids: (res.body.items as Array<{ id: number }>).map((e) => identifiers.get(e.id)), body: res.body };
+    };
+    return { a, b, queue };
+  }
+
+  it('orders by the open proposal nearest 0.5, uncalibrated and unsuggested items next, ties by identifier, skipped last', async () => {
+    const { a, b, queue } = await queueScene();
+    const all = await queue('');
+    expect(all.ids).toEqual(['Q-09', 'Q-07', 'Q-02', 'Q-05', 'Q-03', 'Q-01', 'Q-04', 'Q-06']);
+    expect(all.body.total).toBe(8);
+    const q07 = all.body.items[1];
+    expect(q07).toMatchObject({ proposed: 2, mostUncertain: { subjectId: b.id, probability: 0.55 }, skippedByYou: false });
+    expect(all.body.items[5]).toMatchObject({ proposed: 1, mostUncertain: null });
+    expect(all.body.items[7]).toMatchObject({ skippedByYou: true });
+    expect((await queue('&limit=3&offset=2')).ids).toEqual(['Q-02', 'Q-05', 'Q-03']);
+    // one subject: only its proposals count towards the doubt
+    const one = await queue(`&subjectId=${a.id}`);
+    expect(one.ids).toEqual(['Q-09', 'Q-02', 'Q-07', 'Q-01', 'Q-03', 'Q-06']);
+    expect(one.body.items[2]).toMatchObject({ mostUncertain: { subjectId: a.id, probability: 0.75 } });
+    // a probability band picks the items, the doubt still comes from all their open proposals
+    expect((await queue('&minProbability=0.7&maxProbability=0.8')).ids).toEqual(['Q-07', 'Q-05']);
+    expect((await queue('&sort=identifier')).ids).toEqual(['Q-01', 'Q-02', 'Q-03', 'Q-04', 'Q-05', 'Q-07', 'Q-09', 'Q-06']);
+    expect((await queue('&notReviewed=true')).ids).toEqual(['Q-09', 'Q-07', 'Q-02', 'Q-05', 'Q-01', 'Q-04', 'Q-06']);
+    expect((await queue('&state=approved')).ids).toEqual(['Q-08']);
+  });
+
+  it('keeps that order current: a decision at the desk, and proposals rewritten by SQL and then refreshed as the suggest stage does', async () => {
+    const { a, b, queue } = await queueScene();
+    const before = await queue('');
+    expect(before.ids.slice(0, 2)).toEqual(['Q-09', 'Q-07']);
+    // accepting Q-09's only proposal leaves it with no open doubt: it joins the items without one, by identifier
+    const q09 = before.body.items[0] as { id: number; version: number };
+    await editor.agent.post(`/api/review/items/${q09.id}/subjects`).set('x-csrf-token', editor.csrf).send({ version: q09.version, subjectId: a.id, decision: 'accept' }).expect(200);
+    expect((await queue('')).ids).toEqual(['Q-07', 'Q-02', 'Q-05', 'Q-03', 'Q-01', 'Q-04', 'Q-09', 'Q-06']);
+    // the suggest stage writes its proposals with SQL of its own, past the model's hooks, then refreshes the collection
+    const q05 = before.body.items.find((e: { identifier: string }) => e.identifier === 'Q-05') as { id: number };
+    await sequelize.query('UPDATE suggestions SET probability = 0.5 WHERE item_id = :id AND subject_id = :s', { replacements: { id: q05.id, s: b.id } });
+    expect((await queue('')).ids[0]).toBe('Q-07');
+    const [row] = await sequelize.query<{ collection_id: number }>('SELECT collection_id FROM items WHERE id = :id', { replacements: { id: q05.id }, type: QueryTypes.SELECT });
+    await refreshCollectionReviewMargins(sequelize, row!.collection_id);
+    expect((await queue('')).ids.slice(0, 2)).toEqual(['Q-05', 'Q-07']);
+  });
+});
+

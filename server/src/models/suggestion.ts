@@ -1,5 +1,6 @@
-import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes, type Sequelize, type Transaction } from 'sequelize';
 import type { Item } from './item.ts';
+import { refreshReviewMargins } from './review-margin.ts';
 import type { Subject } from './subject.ts';
 
 export const SUGGESTION_STATES = ['proposed', 'accepted', 'rejected', 'added'] as const;
@@ -38,5 +39,11 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
       },
       { sequelize, tableName: 'suggestions', version: true },
     );
+    // the item's place in the review queue follows its proposals (models/review-margin.ts)
+    const refresh = (rows: readonly Suggestion[], transaction?: Transaction | null) => refreshReviewMargins(sequelize, rows.map((r) => r.itemId), transaction);
+    Suggestion.afterCreate((row, options) => refresh([row], options.transaction));
+    Suggestion.afterBulkCreate((rows, options) => refresh(rows, options.transaction));
+    Suggestion.afterDestroy((row, options) => refresh([row], options.transaction));
+    Suggestion.afterUpdate((row, options) => refresh([row], options.transaction));
   }
 }

@@ -438,16 +438,22 @@ export async function reviewQueue(sequelize: Sequelize, viewer: Actor, q: QueueQ
   if (q.notReviewed) where.push("i.state <> 'approved' AND NOT EXISTS (SELECT 1 FROM suggestions h WHERE h.item_id = i.id AND h.state <> 'proposed')");
   const clause = where.join(' AND ');
   const total = Number((await sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM items i WHERE ${clause}`, { type: QueryTypes.SELECT, replacements: rep }))[0]?.n ?? 0);
-  const order = q.sort === 'identifier' ? 'skipped, i.identifier' : 'skipped, margin IS NULL, margin, i.identifier';
+  // the doubt of an item: its stored margin (models/review-margin.ts), or, within one subject, that subject's own
+  const margin = q.subjectId
+    ? `(SELECT MIN(ABS(h.probability - 0.5)) FROM suggestions h WHERE h.item_id = i.id AND h.state = 'proposed' AND h.probability IS NOT NULL ${subjectCond})`
+    : 'i.review_margin';
+  const order = q.sort === 'identifier' ? 'skipped, identifier' : 'skipped, margin IS NULL, margin, identifier';
+  // the page is chosen first, on the cheap columns; only its rows then look up their proposals
   const rows = await sequelize.query<Record<string, unknown>>(
-    `SELECT i.id, i.identifier, i.caption, i.state, i.version,
-            (SELECT COUNT(*) FROM suggestions h WHERE h.item_id = i.id AND h.state = 'proposed') AS proposed,
-            (SELECT MIN(ABS(h.probability - 0.5)) FROM suggestions h WHERE h.item_id = i.id AND h.state = 'proposed' AND h.probability IS NOT NULL ${subjectCond}) AS margin,
-            (SELECT h.subject_id FROM suggestions h WHERE h.item_id = i.id AND h.state = 'proposed' AND h.probability IS NOT NULL ${subjectCond} ORDER BY ABS(h.probability - 0.5), h.subject_id LIMIT 1) AS doubt_subject,
-            EXISTS (SELECT 1 FROM review_skips k WHERE k.item_id = i.id AND k.user_id = :viewer) AS skipped
-       FROM items i WHERE ${clause}
-      ORDER BY ${order}
-      LIMIT :limit OFFSET :offset`,
+    `SELECT p.*,
+            (SELECT COUNT(*) FROM suggestions h WHERE h.item_id = p.id AND h.state = 'proposed') AS proposed,
+            (SELECT h.subject_id FROM suggestions h WHERE h.item_id = p.id AND h.state = 'proposed' AND h.probability IS NOT NULL ${subjectCond} ORDER BY ABS(h.probability - 0.5), h.subject_id LIMIT 1) AS doubt_subject
+       FROM (SELECT i.id, i.identifier, i.caption, i.state, i.version, ${margin} AS margin,
+                    EXISTS (SELECT 1 FROM review_skips k WHERE k.item_id = i.id AND k.user_id = :viewer) AS skipped
+               FROM items i WHERE ${clause}
+              ORDER BY ${order}
+              LIMIT :limit OFFSET :offset) p
+      ORDER BY ${order}`,
     { type: QueryTypes.SELECT, replacements: { ...rep, limit: q.limit, offset: q.offset } },
   );
   const doubtIds = rows.map((r) => Number(r.doubt_subject)).filter((x) => x > 0);

@@ -4,6 +4,7 @@ import { Item, Subject, SubjectModel, Suggestion } from '../models/index.ts';
 import { prepareCollection } from './features.ts';
 import { synthesizeSubjectModel } from './subject-models.ts';
 import { refreshRegressor, subjectsWithStaleMap, type RefreshOutcome, type WeightMapSettings } from './weight-maps.ts';
+import { refreshCollectionReviewMargins } from '../models/review-margin.ts';
 
 type EmbedderInfo = Pick<Embedder, 'id' | 'dimension' | 'layout'>;
 
@@ -80,6 +81,8 @@ export async function suggestForCollection(sequelize: Sequelize, embedder: Embed
         AND i.state <> IF(EXISTS (SELECT 1 FROM suggestions s WHERE s.item_id = i.id AND s.state = 'proposed'), 'suggested', 'new')`,
     { replacements: { collectionId } },
   );
+  // the review queue's order (the proposals above were written by SQL of their own, past the model's hooks)
+  await refreshCollectionReviewMargins(sequelize, collectionId);
   return { proposed, subjects: models.length };
 }
 
