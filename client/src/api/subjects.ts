@@ -3,6 +3,7 @@ import type { SubjectCreateInput, SubjectMove, SubjectUpdateInput } from '../../
 import { http, unexpectedShape } from './http';
 import { csrfTokensFrom, sendForm } from './intake';
 import { queryKeys } from './query-keys';
+import type { ModelSummary } from '../../../common/api/subjects.ts';
 
 /**
  * The subject studio's API: a collection's vocabulary (subjects and form terms in a tree), one subject with
@@ -12,44 +13,7 @@ import { queryKeys } from './query-keys';
 export type SubjectKind = 'subject' | 'form';
 export type SubjectStatus = 'draft' | 'active' | 'retired';
 export type ExampleMedium = 'sketch' | 'illustration' | 'photo';
-export type SynthesisMethod = 'prototype' | 'photo_augmented' | 'regressed' | 'trained' | 'refined' | 'carried' | (string & {});
-
-export interface QualityRecord {
-  method: SynthesisMethod;
-  scheme: 'leave-one-out' | 'k-fold';
-  folds: number;
-  averagePrecision: number | null;
-  auroc: number | null;
-  threshold: { minZ: number; score: number; precision: number | null; recall: number | null; listed: number };
-  judgements: { examples: number; confirmed: number; rejected: number; otherSubject: number };
-}
-
-export interface MadeFrom {
-  exampleIds?: number[];
-  confirmedItemIds?: number[];
-  rejectedItemIds?: number[];
-  broaderSubjectId?: number;
-  siblingSubjectIds?: number[];
-  sourceCollectionId?: number;
-  sourceModelId?: number;
-  regressorId?: string;
-  mirrored?: boolean;
-  [more: string]: unknown;
-}
-
-export interface ModelSummary {
-  id: number;
-  subjectId: number;
-  version: number;
-  method: SynthesisMethod;
-  embedderId: string;
-  active: boolean;
-  madeFrom: MadeFrom;
-  metrics: QualityRecord | null;
-  calibration: { kind: 'platt' | 'zscore'; positives?: number; negatives?: number } | null;
-  createdAt: string;
-  createdBy: number | null;
-}
+export type { MadeFrom, ModelSummary, QualityRecord, SynthesisMethod } from '../../../common/api/subjects.ts';
 
 export interface SubjectListEntry {
   id: number;

@@ -5,10 +5,9 @@
  */
 import type { Calibration } from './calibration.ts';
 import { dot, featureFromBuffer, featureToBuffer } from './features.ts';
-import type { QualityRecord } from './quality.ts';
+import { METHODS, type MadeFrom, type QualityRecord, type SynthesisMethod } from '../../../common/api/subjects.ts';
 
-export const METHODS = ['prototype', 'regressed', 'photo_augmented', 'refined', 'carried', 'trained'] as const;
-export type SynthesisMethod = (typeof METHODS)[number];
+export { METHODS, type MadeFrom, type SynthesisMethod };
 
 export interface LinearModel {
   weights: Float32Array;
@@ -17,26 +16,6 @@ export interface LinearModel {
 
 export function scoreOne(model: LinearModel, x: Float32Array): number {
   return dot(model.weights, x) + model.bias;
-}
-
-/** How a model version was made: its inputs, for the model history and for reproducing it. */
-export interface MadeFrom {
-  exampleIds?: number[];
-  confirmedItemIds?: number[];
-  rejectedItemIds?: number[];
-  /** for `refined`: the broader subject and the models of its other narrower subjects */
-  broaderSubjectId?: number;
-  siblingSubjectIds?: number[];
-  /** for `carried`: the source collection and model */
-  sourceCollectionId?: number;
-  sourceModelId?: number;
-  /** identifies the weight regressor used, if any */
-  regressorId?: string;
-  /** the transductive refinement's scope, if one was applied */
-  transductive?: { scopeSize: number; temperature: number; iterations: number; anchor: number };
-  /** mirror-flipped example copies were used */
-  mirrored?: boolean;
-  [key: string]: unknown;
 }
 
 /** What the `subject_models` columns hold for one version (the database adds id, subject, version, active). */

@@ -9,7 +9,8 @@
  */
 import { scoreStats, type ScoreStats } from './calibration.ts';
 import { dot } from './features.ts';
-import type { LinearModel, SynthesisMethod } from './model.ts';
+import type { QualityRecord, SynthesisMethod } from '../../../common/api/subjects.ts';
+import type { LinearModel } from './model.ts';
 import { auroc, averagePrecision } from './metrics.ts';
 import { seededRng, shuffled } from './random.ts';
 
@@ -20,18 +21,7 @@ export interface Judgement {
   kind: JudgementKind;
 }
 
-export interface QualityRecord {
-  method: SynthesisMethod;
-  scheme: 'leave-one-out' | 'k-fold';
-  folds: number;
-  /** AP of held-out positives among the negatives; null without positives or negatives */
-  averagePrecision: number | null;
-  auroc: number | null;
-  /** at score ≥ mean + minZ·std of the collection's scores */
-  threshold: { minZ: number; score: number; precision: number | null; recall: number | null; listed: number };
-  /** how many judgements the measurement rests on */
-  judgements: { examples: number; confirmed: number; rejected: number; otherSubject: number };
-}
+export type { QualityRecord };
 
 export interface AssessInput {
   method: SynthesisMethod;

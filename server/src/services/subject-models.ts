@@ -27,6 +27,7 @@ import { Item, Subject, SubjectModel, Suggestion } from '../models/index.ts';
 import { audit } from './audit.ts';
 import { itemRows, prepareCollection, type PreparedCollection } from './features.ts';
 import { carryDecision, chosenRegressor, latestRegressorNote } from './weight-maps.ts';
+import type { ModelSummary } from '../../../common/api/subjects.ts';
 
 type EmbedderInfo = Pick<Embedder, 'id' | 'dimension' | 'layout'>;
 
@@ -36,19 +37,7 @@ export type SynthesisRequest =
   | { mode: 'narrower'; broaderSubjectId?: number }
   | { mode: 'carried'; sourceSubjectId: number };
 
-export interface ModelSummary {
-  id: number;
-  subjectId: number;
-  version: number;
-  method: SynthesisMethod;
-  embedderId: string;
-  active: boolean;
-  madeFrom: MadeFrom;
-  metrics: QualityRecord | null;
-  calibration: { kind: Calibration['kind']; positives?: number; negatives?: number } | null;
-  createdAt: string;
-  createdBy: number | null;
-}
+export type { ModelSummary };
 
 export function summarise(m: SubjectModel): ModelSummary {
   const cal = m.calibration as Calibration | null;
