@@ -6,6 +6,16 @@
 export const METHODS = ['prototype', 'regressed', 'photo_augmented', 'refined', 'carried', 'trained'] as const;
 export type SynthesisMethod = (typeof METHODS)[number];
 
+/** Each method in a few words, as the studio and the subject's history name it. */
+export const METHOD_LABELS: Record<SynthesisMethod, string> = {
+  prototype: 'Average of the examples',
+  regressed: 'Examples through the weight regressor',
+  photo_augmented: 'Examples plus confirmed items',
+  trained: 'Trained on reviewed items',
+  refined: 'Narrower than a broader subject',
+  carried: 'Carried from another collection',
+};
+
 export interface QualityRecord {
   method: SynthesisMethod;
   scheme: 'leave-one-out' | 'k-fold';
@@ -52,4 +62,12 @@ export interface ModelSummary {
   calibration: { kind: 'platt' | 'zscore'; positives?: number; negatives?: number } | null;
   createdAt: string;
   createdBy: number | null;
+}
+
+/** One change to a subject, as its history shows it: when, by whom, and what in words. */
+export interface SubjectHistoryEntry {
+  at: string;
+  action: string;
+  actor: { id: number; name: string } | null;
+  summary: string;
 }

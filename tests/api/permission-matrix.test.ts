@@ -142,6 +142,7 @@ const samples: Record<string, () => Promise<Sample>> = {
   'get /api/subjects/:id/preview': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/preview` }),
   'post /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models`, body: { mode: 'from-examples' } }),
   'get /api/subjects/:id/models': async () => ({ path: `/api/subjects/${(await subjectWithExample()).subjectId}/models` }),
+  'get /api/subjects/:id/history': async () => ({ path: `/api/subjects/${(await makeSubject(await makeCollection())).id}/history` }),
   // subject studio: collection settings, the vocabulary tree, the threshold estimate, vocabulary exchange
   'get /api/collections/archived': async () => ({}),
   'post /api/collections': async () => ({ body: { name: 'Matrix plates', slug: `matrix-${++shade}`, description: '', medium: 'engraving', altTextLanguage: 'en', altTextMaxLength: 125, houseStyle: '' } }),

@@ -109,6 +109,18 @@ describe('subjects are audited', () => {
     expect(events[2]!.detail).toMatchObject({ changes: { status: { from: 'active', to: 'retired' } } });
     expect(events[3]!.detail).toMatchObject({ prefLabel: 'brig', changes: { broaderId: { from: null, to: vessel.id } } });
     for (const e of events) expectActor(e);
+
+    // the subject page's history tells the same, newest first, in words, with who did it
+    const history = (await archivist.agent.get(`/api/subjects/${made.id}/history`).expect(200)).body.history as Array<{ action: string; summary: string; actor: { name: string } }>;
+    expect(history.map((h) => h.action)).toEqual(['subject-moved', 'subject-retired', 'subject-changed', 'subject-created']);
+    expect(history.map((h) => h.summary)).toEqual([
+      'moved it under another broader subject',
+      'retired the subject (changed the status from “active” to “retired”)',
+      'changed the scope note; the status from “draft” to “active”',
+      'created the subject “brig”',
+    ]);
+    expect(new Set(history.map((h) => h.actor.name))).toEqual(new Set([archivist.user.displayName]));
+    await archivist.agent.get('/api/subjects/999999/history').expect(404);
   });
 
   it('long texts are recorded shortened, with their length', async () => {

@@ -53,6 +53,7 @@ export const queryKeys = {
     preview: (subjectId: number, minZ: number) => [...queryKeys.studio.all, 'preview', subjectId, minZ] as const,
     estimate: (subjectId: number, minZ: number) => [...queryKeys.studio.all, 'estimate', subjectId, minZ] as const,
     models: (subjectId: number) => [...queryKeys.studio.all, 'models', subjectId] as const,
+    history: (subjectId: number) => [...queryKeys.studio.all, 'history', subjectId] as const,
     collection: (collectionId: number) => [...queryKeys.studio.all, 'collection', collectionId] as const,
     archived: () => [...queryKeys.studio.all, 'archived-collections'] as const,
   },

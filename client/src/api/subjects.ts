@@ -3,7 +3,7 @@ import type { SubjectCreateInput, SubjectMove, SubjectUpdateInput } from '../../
 import { http, unexpectedShape } from './http';
 import { csrfTokensFrom, sendForm } from './intake';
 import { queryKeys } from './query-keys';
-import type { ModelSummary } from '../../../common/api/subjects.ts';
+import type { ModelSummary, SubjectHistoryEntry } from '../../../common/api/subjects.ts';
 
 /**
  * The subject studio's API: a collection's vocabulary (subjects and form terms in a tree), one subject with
@@ -13,7 +13,7 @@ import type { ModelSummary } from '../../../common/api/subjects.ts';
 export type SubjectKind = 'subject' | 'form';
 export type SubjectStatus = 'draft' | 'active' | 'retired';
 export type ExampleMedium = 'sketch' | 'illustration' | 'photo';
-export type { MadeFrom, ModelSummary, QualityRecord, SynthesisMethod } from '../../../common/api/subjects.ts';
+export type { MadeFrom, ModelSummary, QualityRecord, SubjectHistoryEntry, SynthesisMethod } from '../../../common/api/subjects.ts';
 
 export interface SubjectListEntry {
   id: number;
@@ -168,6 +168,17 @@ export function useEstimate(subjectId: number, minZ: number, enabled: boolean) {
   });
 }
 
+/** Who changed the subject, its examples and its model versions in the studio, newest first. */
+export function useSubjectHistory(subjectId: number) {
+  return useQuery({
+    queryKey: queryKeys.studio.history(subjectId),
+    queryFn: async ({ signal }) => {
+      const path = `/api/subjects/${subjectId}/history`;
+      return member<SubjectHistoryEntry[]>(await http.get<unknown>(path, { signal }), 'history', path, 'the subject’s history', Array.isArray);
+    },
+  });
+}
+
 export function useModels(subjectId: number) {
   return useQuery({
     queryKey: queryKeys.studio.models(subjectId),
@@ -191,6 +202,7 @@ function useRefreshSubject() {
       void queryClient.invalidateQueries({ queryKey: [...queryKeys.studio.all, 'preview', subjectId] });
       void queryClient.invalidateQueries({ queryKey: [...queryKeys.studio.all, 'estimate', subjectId] });
       void queryClient.invalidateQueries({ queryKey: queryKeys.studio.models(subjectId) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.studio.history(subjectId) });
     }
   };
 }

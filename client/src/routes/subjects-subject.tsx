@@ -8,6 +8,7 @@ import { ExamplesPanel } from '../components/studio/examples-panel';
 import { ModelPanel } from '../components/studio/model-panel';
 import { PreviewPanel } from '../components/studio/preview-panel';
 import { SubjectForm } from '../components/studio/subject-form';
+import { SubjectHistory } from '../components/studio/subject-history';
 import { kindShort, statusWords } from '../components/studio/words';
 import { Card } from '../components/ui/card';
 import { ProblemNotice } from '../components/ui/problem-notice';
@@ -25,7 +26,7 @@ export function SubjectRoute() {
   const siblings = useSubjects(subject?.collectionId ?? null);
   const collections = useCollections();
   const update = useUpdateSubject();
-  const ids = { record: useId(), examples: useId(), preview: useId(), model: useId() };
+  const ids = { record: useId(), examples: useId(), preview: useId(), model: useId(), history: useId() };
 
   if (!valid) return <ProblemNotice announce title="No such subject" detail="The address does not name a subject." />;
   if (detail.isError) {
@@ -114,6 +115,13 @@ export function SubjectRoute() {
               <dd>{subject.altTextPhrase ?? 'none'}</dd>
             </dl>
           )}
+        </Card>
+
+        <Card as="section" aria-labelledby={ids.history} className="space-y-4">
+          <h2 id={ids.history} className="text-2xl font-bold">
+            History
+          </h2>
+          <SubjectHistory subjectId={subject.id} />
         </Card>
       </div>
     </>

@@ -15,6 +15,7 @@ import { activeModel, judgedItems, modelHistory, rankedPreview, summarise, synth
 import { subjectCreateSchema, subjectMoveSchema, subjectUpdateSchema } from '../../../common/schemas/subject.ts';
 import { addExamples, estimateAtThreshold, removeExample } from '../services/subject-studio.ts';
 import { conceptBase, conceptUriOf, createSubject, moveSubject, subjectRecord, updateSubject } from '../services/vocabulary.ts';
+import { subjectHistory } from '../services/subject-history.ts';
 
 const idParam = z.object({ id: z.coerce.number().int().positive() });
 const EXAMPLE_FORMATS = new Set(['jpeg', 'png', 'webp', 'tiff']);
@@ -133,6 +134,12 @@ export function registerSubjectRoutes(api: GuardedRouter, ctx: AppContext): void
   });
 
   /** Estimated precision and recall at a threshold, from the items editors judged; says when there are too few. */
+  api.route('get', '/subjects/:id/history', read, async (req, res) => {
+    const { id } = parse(idParam, req.params, 'path');
+    await subjectOr404(id);
+    res.json({ history: await subjectHistory(id) });
+  });
+
   api.route('get', '/subjects/:id/estimate', read, async (req, res) => {
     const { id } = parse(idParam, req.params, 'path');
     const { minZ } = parse(z.object({ minZ: z.coerce.number().min(-10).max(10).default(2) }), req.query, 'query');

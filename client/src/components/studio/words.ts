@@ -1,3 +1,4 @@
+import { METHOD_LABELS } from '../../../../common/api/subjects.ts';
 import type { ExampleMedium, SubjectKind, SubjectStatus, SynthesisMethod } from '../../api/subjects';
 
 /** The studio's words for media, kinds, states and synthesis methods, in one place. */
@@ -30,17 +31,17 @@ export const statusWords: Record<SubjectStatus, { label: string; hint: string }>
 export function methodWords(method: SynthesisMethod): { label: string; explanation: string } {
   switch (method) {
     case 'prototype':
-      return { label: 'Average of the examples', explanation: 'the mean of the examples’ features (weight imprinting); it needs nothing but the examples.' };
+      return { label: METHOD_LABELS.prototype, explanation: 'the mean of the examples’ features (weight imprinting); it needs nothing but the examples.' };
     case 'regressed':
-      return { label: 'Examples through the weight regressor', explanation: 'the examples’ average mapped by a model regression network trained on this collection’s subjects with reviewed items.' };
+      return { label: METHOD_LABELS.regressed, explanation: 'the examples’ average mapped by a model regression network trained on this collection’s subjects with reviewed items.' };
     case 'photo_augmented':
-      return { label: 'Examples plus confirmed items', explanation: 'the examples together with the items editors confirmed for this subject.' };
+      return { label: METHOD_LABELS.photo_augmented, explanation: 'the examples together with the items editors confirmed for this subject.' };
     case 'trained':
-      return { label: 'Trained on reviewed items', explanation: 'a classifier fitted to the items editors confirmed and rejected.' };
+      return { label: METHOD_LABELS.trained, explanation: 'a classifier fitted to the items editors confirmed and rejected.' };
     case 'refined':
-      return { label: 'Narrower than a broader subject', explanation: 'the broader subject’s model, turned towards this subject’s examples and away from its siblings.' };
+      return { label: METHOD_LABELS.refined, explanation: 'the broader subject’s model, turned towards this subject’s examples and away from its siblings.' };
     case 'carried':
-      return { label: 'Carried from another collection', explanation: 'a model trained on a collection of another medium, moved across to this one.' };
+      return { label: METHOD_LABELS.carried, explanation: 'a model trained on a collection of another medium, moved across to this one.' };
     default:
       return { label: String(method), explanation: 'a method this screen has no description for yet.' };
   }
