@@ -215,7 +215,8 @@ describe('the review desk API', () => {
 describe('the queue order', () => {
   // A small collection whose order is worked out by hand from the rule the queue states: items this editor
   // skipped last; before them, the items whose most doubtful open proposal is nearest 0.5 first, items
-  // without a calibrated open proposal after those; ties by identifier. Approved items are not in the open queue.
+  // without a calibrated open proposal after those (items under review, 'suggested', before items with no proposal);
+  // ties by identifier. Approved items are not in the open queue.
   async function queueScene() {
     const c = await makeCollection();
     const a = await makeSubject(c, { prefLabel: 'harbour crane' });
@@ -270,10 +271,11 @@ describe('the queue order', () => {
     const { a, b, queue } = await queueScene();
     const before = await queue('');
     expect(before.ids.slice(0, 2)).toEqual(['Q-09', 'Q-07']);
-    // accepting Q-09's only proposal leaves it with no open doubt: it joins the items without one, by identifier
+    // accepting Q-09's only proposal leaves it with no open doubt: it joins the items still under review without one
+    // (state 'suggested', by identifier), before Q-04, which never had a proposal
     const q09 = before.body.items[0] as { id: number; version: number };
     await editor.agent.post(`/api/review/items/${q09.id}/subjects`).set('x-csrf-token', editor.csrf).send({ version: q09.version, subjectId: a.id, decision: 'accept' }).expect(200);
-    expect((await queue('')).ids).toEqual(['Q-07', 'Q-02', 'Q-05', 'Q-03', 'Q-01', 'Q-04', 'Q-09', 'Q-06']);
+    expect((await queue('')).ids).toEqual(['Q-07', 'Q-02', 'Q-05', 'Q-03', 'Q-01', 'Q-09', 'Q-04', 'Q-06']);
     // the suggest stage writes its proposals with SQL of its own, past the model's hooks, then refreshes the collection
     const q05 = before.body.items.find((e: { identifier: string }) => e.identifier === 'Q-05') as { id: number };
     await sequelize.query('UPDATE suggestions SET probability = 0.5 WHERE item_id = :id AND subject_id = :s', { replacements: { id: q05.id, s: b.id } });

@@ -413,8 +413,8 @@ export interface QueueQuery {
 
 /**
  * The item-first queue. Uncertainty order puts first the items whose most doubtful proposal has a probability
- * nearest 0.5 (the decision that tells the models most, as in uncertainty sampling), uncalibrated ones after
- * them; items this editor skipped go to the end.
+ * nearest 0.5 (the decision that tells the models most, as in uncertainty sampling), then items whose proposals
+ * are not calibrated yet, then items with none; items this editor skipped go to the end.
  */
 export async function reviewQueue(sequelize: Sequelize, viewer: Actor, q: QueueQuery): Promise<{ items: QueueEntry[]; total: number }> {
   const where = ['i.collection_id = :collectionId'];
@@ -442,7 +442,8 @@ export async function reviewQueue(sequelize: Sequelize, viewer: Actor, q: QueueQ
   const margin = q.subjectId
     ? `(SELECT MIN(ABS(h.probability - 0.5)) FROM suggestions h WHERE h.item_id = i.id AND h.state = 'proposed' AND h.probability IS NOT NULL ${subjectCond})`
     : 'i.review_margin';
-  const order = q.sort === 'identifier' ? 'skipped, identifier' : 'skipped, margin IS NULL, margin, identifier';
+  // then, among items with no calibrated doubt, those with proposals waiting ('suggested') before those with none
+  const order = q.sort === 'identifier' ? 'skipped, identifier' : "skipped, margin IS NULL, margin, state <> 'suggested', identifier";
   // the page is chosen first, on the cheap columns; only its rows then look up their proposals
   const rows = await sequelize.query<Record<string, unknown>>(
     `SELECT p.*,
