@@ -21,6 +21,25 @@ export interface DemoLoadResult {
   items: number;
 }
 
+const DAY_MS = 86_400_000;
+
+/**
+ * The demo's calendar, relative to the day it is loaded, so the ledger's weekly figures show a history whenever
+ * someone runs it: the scans came in twelve weeks ago, and the scenario's approvals (in their own order and
+ * spacing) are spread over the eleven weeks since, the last one yesterday.
+ */
+export function demoDates(collections: DemoScenario['collections'], now: Date): { intakeAt: Date; approvedAt: (iso: string) => Date } {
+  const times = collections.flatMap((c) => c.items.flatMap((i) => (i.reviewed ? [Date.parse(i.reviewed.approvedAt)] : [])));
+  const first = Math.min(...times);
+  const span = Math.max(1, Math.max(...times) - first);
+  const end = now.getTime() - DAY_MS;
+  const start = now.getTime() - 77 * DAY_MS;
+  return {
+    intakeAt: new Date(now.getTime() - 84 * DAY_MS),
+    approvedAt: (iso) => new Date(times.length === 0 ? end : start + ((Date.parse(iso) - first) / span) * (end - start)),
+  };
+}
+
 /**
  * Loads the scenario in one transaction (all or nothing). Images are rendered and stored first, by content
  * hash, so an interrupted load leaves at most unreferenced files behind, never half a catalogue.
@@ -28,7 +47,7 @@ export interface DemoLoadResult {
 export async function loadDemoScenario(
   sequelize: Sequelize,
   storage: Storage,
-  opts: { scenario?: DemoScenario; itemsPerCollection?: number; onProgress?: (done: number, total: number) => void } = {},
+  opts: { scenario?: DemoScenario; itemsPerCollection?: number; onProgress?: (done: number, total: number) => void; now?: Date } = {},
 ): Promise<DemoLoadResult> {
   const existing = await Collection.count();
   if (existing > 0) {
@@ -39,6 +58,8 @@ export async function loadDemoScenario(
     ...c,
     items: opts.itemsPerCollection === undefined ? c.items : c.items.slice(0, opts.itemsPerCollection),
   }));
+
+  const dates = demoDates(collections, opts.now ?? new Date());
 
   // 1. images (outside the transaction: slow, idempotent)
   const total = collections.reduce((n, c) => n + c.items.length, 0);
@@ -143,7 +164,8 @@ export async function loadDemoScenario(
             decorative: it.reviewed?.decorative ?? false,
             ocrText: null,
             approvedBy: reviewer?.id ?? null,
-            approvedAt: it.reviewed ? new Date(it.reviewed.approvedAt) : null,
+            approvedAt: it.reviewed ? dates.approvedAt(it.reviewed.approvedAt) : null,
+            createdAt: dates.intakeAt,
           },
           { transaction },
         );
@@ -163,7 +185,7 @@ export async function loadDemoScenario(
                 probability: null,
                 state: 'added',
                 decidedBy: reviewer.id,
-                decidedAt: new Date(it.reviewed.approvedAt),
+                decidedAt: dates.approvedAt(it.reviewed.approvedAt),
               },
               { transaction },
             );

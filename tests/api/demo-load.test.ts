@@ -37,6 +37,22 @@ describe('loading the demo scenario', () => {
     for (const a of approved) expect(await Suggestion.count({ where: { itemId: a.id, state: 'added' } })).toBeGreaterThan(0);
   });
 
+  it('dates the demo from the day it is loaded: scans in twelve weeks ago, approvals spread since, the last yesterday', async () => {
+    const now = new Date('2026-12-02T12:00:00Z');
+    await loadDemoScenario(sequelize, storage, { itemsPerCollection: 40, now });
+    const day = 86_400_000;
+    const items = await Item.findAll();
+    for (const i of items) expect(i.createdAt.getTime()).toBe(now.getTime() - 84 * day);
+    const approvals = items.filter((i) => i.approvedAt).map((i) => i.approvedAt!.getTime()).sort((a, b) => a - b);
+    expect(approvals.length).toBeGreaterThan(2);
+    expect(approvals[0]).toBe(now.getTime() - 77 * day);
+    expect(approvals.at(-1)).toBeLessThanOrEqual(now.getTime() - day);
+    // spread over more than one week, so the ledger's weekly lines have a history
+    expect(approvals.at(-1)! - approvals[0]!).toBeGreaterThan(7 * day);
+    const decided = await Suggestion.findAll({ where: { state: 'added' } });
+    for (const d of decided) expect(d.decidedAt!.getTime()).toBeLessThan(now.getTime());
+  });
+
   it('does nothing when the database already has collections', async () => {
     await loadDemoScenario(sequelize, storage, { itemsPerCollection: 2 });
     const again = await loadDemoScenario(sequelize, storage, { itemsPerCollection: 2 });

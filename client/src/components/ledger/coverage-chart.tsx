@@ -16,6 +16,7 @@ export function CoverageChart({ data }: { data: CoverageOverTime }) {
     return row;
   });
   const last = data.weeks.length - 1;
+  const labelShift = endLabelShifts(series.map((s) => s.points[last]?.coverage ?? null));
   const summary =
     series.length === 0
       ? 'There is no collection yet.'
@@ -100,7 +101,7 @@ export function CoverageChart({ data }: { data: CoverageOverTime }) {
                   }
                   label={(props: { x?: number | string; y?: number | string; index?: number; value?: unknown }) =>
                     wide && props.index === last && typeof props.value === 'number' ? (
-                      <text key={`l${i}`} x={Number(props.x) + 10} y={Number(props.y) + 4 + i * 2} fill={INK} fontSize={13} fontWeight={700}>
+                      <text key={`l${i}`} x={Number(props.x) + 10} y={Number(props.y) + 4 + (labelShift[i] ?? 0)} fill={INK} fontSize={13} fontWeight={700}>
                         {s.name.length > 18 ? `${s.name.slice(0, 17)}…` : s.name} {percentWords(props.value)}
                       </text>
                     ) : (
@@ -115,4 +116,26 @@ export function CoverageChart({ data }: { data: CoverageOverTime }) {
       )}
     </ChartFigure>
   );
+}
+
+/** Height of the plotting area in pixels (the figure's 300 less the margins and the week axis), for label spacing. */
+const PLOT_HEIGHT = 246;
+/** Least distance between two end labels, in pixels (a 13 px line of text and a little air). */
+const LABEL_GAP = 16;
+
+/**
+ * How far to move each line's end label down (pixels) so that no two overlap: labels are taken from the top of
+ * the chart down, and each is pushed below the one above it when closer than LABEL_GAP. Lines without a last
+ * value get no label and no shift.
+ */
+export function endLabelShifts(values: ReadonlyArray<number | null>): number[] {
+  const order = values.map((v, i) => ({ i, y: v === null ? null : (1 - v) * PLOT_HEIGHT })).filter((e): e is { i: number; y: number } => e.y !== null).sort((a, b) => a.y - b.y || a.i - b.i);
+  const shifts = values.map(() => 0);
+  let previous = -Infinity;
+  for (const e of order) {
+    const y = Math.max(e.y, previous + LABEL_GAP);
+    shifts[e.i] = y - e.y;
+    previous = y;
+  }
+  return shifts;
 }
