@@ -65,7 +65,8 @@ export interface TextReading {
 export async function createOcrWorker(): Promise<Worker> {
   const worker = await createWorker('eng', 1, { langPath: LANG_PATH, cacheMethod: 'none', gzip: true });
   try {
-    await worker.setParameters({ tessedit_pageseg_mode: OCR_PAGE_SEGMENTATION as never });
+    // debug_file: tesseract's own progress lines ("Estimating resolution as …") go nowhere instead of the worker's log
+    await worker.setParameters({ tessedit_pageseg_mode: OCR_PAGE_SEGMENTATION as never, debug_file: '/dev/null' } as never);
   } catch (err) {
     await worker.terminate();
     throw err;
