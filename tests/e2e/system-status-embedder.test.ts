@@ -58,7 +58,7 @@ describe('the embedder on the system-status line', () => {
   it('says the image features have not started, then that they run on ONNX Runtime', async () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
     await signInThroughPage(page, base, adminEmail, TEST_PASSWORD);
-    expect(await statusLine(page)).toContain('Image features not started ONNX Runtime starts with the first upload of examples');
+    expect(await statusLine(page)).toContain('Image features not started ONNX Runtime starts when the API starts, or at the first upload of examples');
     await processEmbedder();
     await page.reload();
     const text = await statusLine(page);

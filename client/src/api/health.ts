@@ -1,23 +1,11 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { http, unexpectedShape } from './http';
 import { queryKeys } from './query-keys';
+import type { EmbedderHealth } from '../../../common/api/health.ts';
 
 export type WorkerState = 'running' | 'stale' | 'absent';
 
-/** The API process's embedder as /api/health reports it: which runtime turns images into features. */
-export interface EmbedderHealth {
-  /** what the settings ask for: the built-in backbone on onnx or tfjs, or a model named by a configuration file */
-  requested: 'onnx' | 'tfjs' | 'configured model';
-  /** idle: not needed yet (it starts with the first upload of examples); failed: it could not start */
-  state: 'idle' | 'starting' | 'ready' | 'failed';
-  id: string | null;
-  runtime: 'onnx' | 'tfjs' | null;
-  /** why the requested runtime is not the one in use */
-  fallbackReason: string | null;
-  /** ONNX against TF.js on the start-up probe image */
-  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
-  error?: string;
-}
+export type { EmbedderHealth } from '../../../common/api/health.ts';
 
 export interface Health {
   status: 'ok' | 'degraded';

@@ -1,21 +1,9 @@
 import { Op, type Sequelize } from 'sequelize';
 import type { EmbedderSelection, EmbedderStatus } from '../ml/index.ts';
 import { WorkerHeartbeat } from '../models/index.ts';
+import type { EmbedderHealth } from '../../../common/api/health.ts';
 
-/** The API process's embedder as /api/health shows it (the night-shift worker reads the same settings). */
-export interface EmbedderHealth {
-  /** what the settings ask for: the built-in backbone on onnx or tfjs, or a model named by a configuration file */
-  requested: 'onnx' | 'tfjs' | 'configured model';
-  /** idle: not needed yet (it starts with the first upload of examples); failed: it could not start */
-  state: 'idle' | 'starting' | 'ready' | 'failed';
-  id: string | null;
-  runtime: 'onnx' | 'tfjs' | null;
-  /** why the requested runtime is not the one in use */
-  fallbackReason: string | null;
-  /** ONNX against TF.js on the start-up probe image */
-  agreement: { relativeL2: number; maxAbs: number; lowestCosine: number } | null;
-  error?: string;
-}
+export type { EmbedderHealth };
 
 /** Shapes the embedder part of the report from the settings and the process embedder's state. */
 export function embedderHealth(selection: EmbedderSelection, current: { state: EmbedderHealth['state']; status?: EmbedderStatus; error?: string }): EmbedderHealth {

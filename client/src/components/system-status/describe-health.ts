@@ -22,7 +22,7 @@ export function describeEmbedder(e: EmbedderHealth): HealthPart {
   const asked = e.requested === 'configured model' ? 'a configured model' : RUNTIME_NAMES[e.requested];
   switch (e.state) {
     case 'idle':
-      return { key: 'embedder', tone: 'waiting', state: 'Image features not started', detail: `${asked} starts with the first upload of examples` };
+      return { key: 'embedder', tone: 'waiting', state: 'Image features not started', detail: `${asked} starts when the API starts, or at the first upload of examples` };
     case 'starting':
       return { key: 'embedder', tone: 'waiting', state: 'Image features starting', detail: `loading ${asked}` };
     case 'failed':
