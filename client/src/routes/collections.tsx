@@ -6,6 +6,7 @@ import { hasPermission, useSession } from '../api/session';
 import { CollectionForm, emptyCollection } from '../components/collections/collection-form';
 import { Button } from '../components/ui/button';
 import { Card } from '../components/ui/card';
+import { CreatePanel } from '../components/ui/create-panel';
 import { ProblemNotice } from '../components/ui/problem-notice';
 import { formatCount, formatDateTime } from '../lib/format';
 
@@ -19,7 +20,6 @@ export function CollectionsRoute() {
   const navigate = useNavigate();
   const [adding, setAdding] = useState(false);
   const listHeading = useId();
-  const newHeading = useId();
   const archivedHeading = useId();
   const list = collections.data?.collections ?? [];
 
@@ -47,10 +47,7 @@ export function CollectionsRoute() {
             ) : null}
           </div>
           {adding ? (
-            <section aria-labelledby={newHeading} className="space-y-3 rounded-card border-2 border-line bg-paper p-4">
-              <h3 id={newHeading} className="text-xl font-bold">
-                New collection
-              </h3>
+            <CreatePanel title="New collection" onCancel={() => setAdding(false)}>
               <CollectionForm
                 suggestSlug
                 initial={emptyCollection()}
@@ -60,8 +57,7 @@ export function CollectionsRoute() {
                   await navigate(`/collections/${c.id}`);
                 }}
               />
-              <Button onClick={() => setAdding(false)}>Cancel</Button>
-            </section>
+            </CreatePanel>
           ) : null}
           {collections.isError ? (
             <ProblemNotice headingLevel={3} title={problemOf(collections.error).title} detail={problemOf(collections.error).detail} reference={problemReference(problemOf(collections.error))} />

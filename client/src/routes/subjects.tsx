@@ -10,6 +10,7 @@ import { VocabularyExchange } from '../components/studio/vocabulary-exchange';
 import { VocabularyTree } from '../components/studio/vocabulary-tree';
 import { Button } from '../components/ui/button';
 import { Card } from '../components/ui/card';
+import { CreatePanel } from '../components/ui/create-panel';
 import { ProblemNotice } from '../components/ui/problem-notice';
 
 /** The subject studio's first screen: a collection's vocabulary as a tree, a new subject, and vocabulary exchange. */
@@ -25,7 +26,6 @@ export function SubjectsRoute() {
   const navigate = useNavigate();
   const [adding, setAdding] = useState(false);
   const treeHeading = useId();
-  const newHeading = useId();
   const exchangeHeading = useId();
 
   return (
@@ -78,10 +78,7 @@ export function SubjectsRoute() {
               </div>
 
               {adding ? (
-                <section aria-labelledby={newHeading} className="space-y-3 rounded-card border-2 border-line bg-paper p-4">
-                  <h3 id={newHeading} className="text-xl font-bold">
-                    New subject
-                  </h3>
+                <CreatePanel title="New subject" onCancel={() => setAdding(false)}>
                   <p className="max-w-prose text-sm text-muted">Name it now; labels, notes and examples go on its own page, where it opens next.</p>
                   <SubjectForm
                     brief
@@ -92,8 +89,7 @@ export function SubjectsRoute() {
                       await navigate(`/subjects/${s.id}`);
                     }}
                   />
-                  <Button onClick={() => setAdding(false)}>Cancel</Button>
-                </section>
+                </CreatePanel>
               ) : null}
 
               {subjects.isError ? (
