@@ -51,13 +51,7 @@ export async function makeDerivatives(
   opts: { embedInput?: boolean; view?: boolean } = {},
 ): Promise<Derivatives> {
   if (opts.view === false) return thumbnailOnly(input, maxPixels, sizes, opts.embedInput === true);
-  const { data, info } = await sharp(input, decodeOptions(maxPixels))
-    .rotate()
-    .resize({ width: sizes.view, height: sizes.view, fit: 'inside', withoutEnlargement: true })
-    .flatten({ background: '#ffffff' })
-    .toColourspace('srgb')
-    .raw()
-    .toBuffer({ resolveWithObject: true });
+  const { data, info } = await decodeUpright(input, maxPixels, sizes.view);
   const raw = { raw: { width: info.width, height: info.height, channels: info.channels } } as const;
   const view = await sharp(data, raw).jpeg({ quality: 84, optimiseCoding: false }).toBuffer();
   const small = await sharp(data, raw).resize({ width: sizes.thumb, height: sizes.thumb, fit: 'inside', withoutEnlargement: true }).raw().toBuffer({ resolveWithObject: true });
@@ -72,14 +66,18 @@ export async function makeDerivatives(
  * damaged files are refused just the same.
  */
 async function thumbnailOnly(input: string | Buffer, maxPixels: number, sizes: DerivativeSizes, embedInput: boolean): Promise<Derivatives> {
-  const small = await sharp(input, decodeOptions(maxPixels))
+  return encodeSmall(await decodeUpright(input, maxPixels, sizes.thumb), embedInput);
+}
+
+/** Decodes the whole image to raw sRGB pixels: upright by its EXIF orientation, on white, at most `longSide` on its long side. */
+function decodeUpright(input: string | Buffer, maxPixels: number, longSide: number): Promise<{ data: Buffer; info: OutputInfo }> {
+  return sharp(input, decodeOptions(maxPixels))
     .rotate()
-    .resize({ width: sizes.thumb, height: sizes.thumb, fit: 'inside', withoutEnlargement: true })
+    .resize({ width: longSide, height: longSide, fit: 'inside', withoutEnlargement: true })
     .flatten({ background: '#ffffff' })
     .toColourspace('srgb')
     .raw()
     .toBuffer({ resolveWithObject: true });
-  return encodeSmall(small, embedInput);
 }
 
 async function encodeSmall(small: { data: Buffer; info: OutputInfo }, embedInput: boolean): Promise<Pick<Derivatives, 'thumb' | 'embedInput'>> {
